@@ -1,0 +1,170 @@
+package report
+
+import (
+	"encoding/csv"
+	"encoding/json"
+	"io"
+	"math"
+	"strconv"
+)
+
+// Fixed lists the columns every results table starts with, in order.
+var Fixed = []string{"analysis", "type", "seed", "target", "method", "n", "r", "p"}
+
+// Columns returns the table's columns: Fixed, then every extra field name in
+// order of first appearance.
+func (res *Results) Columns() []string {
+	cols := append([]string(nil), Fixed...)
+	seen := map[string]bool{}
+	for _, c := range cols {
+		seen[c] = true
+	}
+	for _, r := range res.Rows {
+		for _, f := range r.Extra {
+			if !seen[f.Name] {
+				seen[f.Name] = true
+				cols = append(cols, f.Name)
+			}
+		}
+	}
+	return cols
+}
+
+// Num formats a number for a table cell: empty for NaN or ±Inf, otherwise
+// the shortest form that reads back to the same float64.
+func Num(v float64) string {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return ""
+	}
+	return strconv.FormatFloat(v, 'g', -1, 64)
+}
+
+// Cells returns row's values in the order of cols.
+func (r *Row) Cells(cols []string) []string {
+	out := make([]string, len(cols))
+	for i, c := range cols {
+		switch c {
+		case "analysis":
+			out[i] = r.Analysis
+		case "type":
+			out[i] = r.Type
+		case "seed":
+			out[i] = r.Seed
+		case "target":
+			out[i] = r.Target
+		case "method":
+			out[i] = r.Method
+		case "n":
+			out[i] = strconv.Itoa(r.N)
+		case "r":
+			out[i] = Num(r.R)
+		case "p":
+			out[i] = Num(r.P)
+		default:
+			for _, f := range r.Extra {
+				if f.Name == c {
+					out[i] = f.Value
+					break
+				}
+			}
+		}
+	}
+	return out
+}
+
+// Table returns the header and the cells of every row.
+func (res *Results) Table() (header []string, rows [][]string) {
+	header = res.Columns()
+	for i := range res.Rows {
+		rows = append(rows, res.Rows[i].Cells(header))
+	}
+	return header, rows
+}
+
+// WriteCSV writes the results table: one header line, one line per row.
+func WriteCSV(w io.Writer, res *Results) error {
+	cw := csv.NewWriter(w)
+	header, rows := res.Table()
+	if err := cw.Write(header); err != nil {
+		return err
+	}
+	if err := cw.WriteAll(rows); err != nil {
+		return err
+	}
+	cw.Flush()
+	return cw.Error()
+}
+
+// WriteMapCSV writes one map: a header of column labels after the row-axis
+// name, then one line per row.
+func WriteMapCSV(w io.Writer, m *Map) error {
+	cw := csv.NewWriter(w)
+	head := append([]string{m.RowName + `\` + m.ColName}, m.ColLabels...)
+	if err := cw.Write(head); err != nil {
+		return err
+	}
+	for i, vals := range m.Values {
+		rec := make([]string, 0, len(vals)+1)
+		label := ""
+		if i < len(m.RowLabels) {
+			label = m.RowLabels[i]
+		}
+		rec = append(rec, label)
+		for _, v := range vals {
+			rec = append(rec, Num(v))
+		}
+		if err := cw.Write(rec); err != nil {
+			return err
+		}
+	}
+	cw.Flush()
+	return cw.Error()
+}
+
+type jsonOut struct {
+	Columns  []string            `json:"columns"`
+	Rows     []map[string]any    `json:"rows"`
+	Maps     []string            `json:"maps"`
+	Figures  []map[string]string `json:"figures"`
+	Warnings []string            `json:"warnings"`
+	Recipe   json.RawMessage     `json:"recipe,omitempty"`
+}
+
+// WriteJSON writes the results as one JSON object: columns, rows (numbers
+// as numbers, empty cells as null), the names of maps and figures, the
+// warnings and the resolved recipe.
+func WriteJSON(w io.Writer, res *Results) error {
+	header, cells := res.Table()
+	out := jsonOut{Columns: header, Rows: []map[string]any{}, Maps: []string{}, Figures: []map[string]string{}, Warnings: res.Warnings}
+	if out.Warnings == nil {
+		out.Warnings = []string{}
+	}
+	for _, row := range cells {
+		m := make(map[string]any, len(header))
+		for i, c := range header {
+			v := row[i]
+			if v == "" {
+				m[c] = nil
+				continue
+			}
+			if _, err := strconv.ParseFloat(v, 64); err == nil && c != "seed" && c != "target" && c != "analysis" {
+				m[c] = json.Number(v)
+				continue
+			}
+			m[c] = v
+		}
+		out.Rows = append(out.Rows, m)
+	}
+	for _, m := range res.Maps {
+		out.Maps = append(out.Maps, m.Name)
+	}
+	for _, f := range res.Figures {
+		out.Figures = append(out.Figures, map[string]string{"name": f.Name, "title": f.Title})
+	}
+	if len(res.Recipe) > 0 && json.Valid(res.Recipe) {
+		out.Recipe = json.RawMessage(res.Recipe)
+	}
+	enc := json.NewEncoder(w)
+	enc.SetIndent("", "  ")
+	return enc.Encode(out)
+}
