@@ -34,10 +34,14 @@ func WindowPower(ctx context.Context, dst []float64, bank *spectral.Bank, e *dat
 	for s, sp := range spans {
 		h := bank.MaxHalf(sp.Freqs)
 		lo, hi := spectral.Crop(e.NSamples, sp.From, sp.To, h)
-		nfft := spectral.GoodSize(hi - lo + 2*h)
+		// Only the window's own samples are read, so the FFT need only keep
+		// those free of wrap-around (Convolver.Tight).
+		nfft := spectral.TightFFTLen(hi-lo, sp.From-lo, sp.To-lo, h)
 		crops[s] = crop{lo, hi, nfft}
 		if convs[nfft] == nil {
-			convs[nfft] = bank.NewConvolver(nfft)
+			c := bank.NewConvolver(nfft)
+			c.Tight = true
+			convs[nfft] = c
 		}
 	}
 	for t := 0; t < e.NTrials; t++ {

@@ -3,7 +3,7 @@ package demo
 import _ "embed"
 
 //go:embed recipe.json
-var recipe []byte
+var recipeJSON []byte
 
 // Recipe returns the demo recipe as JSON.
-func Recipe() []byte { return append([]byte(nil), recipe...) }
+func Recipe() []byte { return append([]byte(nil), recipeJSON...) }

@@ -48,7 +48,7 @@ type envPlan struct {
 	epoched bool
 	terms   []term // correlated series pairs, in output order
 	rows    []pairRow
-	units   []int   // plan unit ids, in time order
+	units   []int    // plan unit ids, in time order
 	spans   [][2]int // continuous: retained output span of each unit
 	store   bool     // units return their binned series
 	storeOr bool     // ... including orthogonalised series

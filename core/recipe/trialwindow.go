@@ -204,5 +204,3 @@ func applyCorrection(a *Analysis, rows []report.Row, ps []float64) {
 		setField(&rows[i], "q", report.Num(q[i]))
 	}
 }
-
-

@@ -15,7 +15,8 @@ import (
 // n(n+1)/2. NaN values get rank NaN and the other values are ranked among
 // themselves.
 //
-// Ranks panics if dst is not nil and len(dst) != len(x).
+// dst must not overlap x. Ranks panics if dst is not nil and
+// len(dst) != len(x).
 func Ranks(dst, x []float64) []float64 {
 	if dst == nil {
 		dst = make([]float64, len(x))

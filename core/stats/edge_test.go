@@ -71,6 +71,9 @@ func TestUndefined(t *testing.T) {
 		if p, ok := ExactPearsonP(seq(11), seq(11)); ok || !math.IsNaN(p) {
 			t.Errorf("ExactPearsonP n=11 = %g, %v", p, ok)
 		}
+		if p, ok := ExactPearsonP([]float64{1, 2, math.Inf(1)}, []float64{1, 2, 3}); !ok || !math.IsNaN(p) {
+			t.Errorf("ExactPearsonP with +Inf = %g, %v", p, ok)
+		}
 		if p, ok := ExactSpearmanP(flat, inc); !ok || !math.IsNaN(p) {
 			t.Errorf("ExactSpearmanP constant = %g, %v", p, ok)
 		}

@@ -83,7 +83,7 @@ func ExactSpearmanP(x, y []float64) (p float64, ok bool) {
 // The relative tolerance lets orderings that tie with the observed one in
 // exact arithmetic count despite rounding. ok is false (and p NaN) when
 // n > MaxExactN; p is NaN with ok true when n < 2 or either series is
-// constant. It panics if the lengths differ.
+// constant or holds NaN or ±Inf. It panics if the lengths differ.
 func ExactPearsonP(x, y []float64) (p float64, ok bool) {
 	if len(x) != len(y) {
 		panic("stats: ExactPearsonP length mismatch")
@@ -107,6 +107,9 @@ func ExactPearsonP(x, y []float64) (p float64, ok bool) {
 			s += a[i] * b[i]
 		}
 		return s
+	}
+	if d := dot(); math.IsNaN(d) || math.IsInf(d, 0) {
+		return math.NaN(), true // infinite values
 	}
 	obs := math.Abs(dot()) * (1 - exactTol)
 	count := 0

@@ -68,6 +68,9 @@ func FuzzCorrelation(f *testing.F) {
 			if p, ok := ExactSpearmanP(x, y); !ok || (!math.IsNaN(p) && !(p > 0 && p <= 1)) {
 				t.Fatalf("exact p = %g, ok %v", p, ok)
 			}
+			if p, ok := ExactPearsonP(x, y); !ok || (!math.IsNaN(p) && !(p > 0 && p <= 1)) {
+				t.Fatalf("exact Pearson p = %g, ok %v", p, ok)
+			}
 		}
 	})
 }

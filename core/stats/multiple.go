@@ -24,7 +24,12 @@ func BH(p []float64) []float64 {
 		}
 		idx = append(idx, i)
 	}
-	slices.SortStableFunc(idx, func(a, b int) int { return cmp.Compare(p[a], p[b]) })
+	slices.SortFunc(idx, func(a, b int) int {
+		if c := cmp.Compare(p[a], p[b]); c != 0 {
+			return c
+		}
+		return cmp.Compare(a, b)
+	})
 	m := float64(len(idx))
 	run := 1.0
 	for k := len(idx) - 1; k >= 0; k-- {

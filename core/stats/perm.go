@@ -50,11 +50,26 @@ func Shuffle(rng *rand.Rand, perm []int) {
 	}
 }
 
-// shuffleFloats is Shuffle for a []float64; the same rng stream gives the
-// same permutation.
-func shuffleFloats(rng *rand.Rand, v []float64) {
+// shuffleFloats is Shuffle for a []float64 drawing from the PCG source
+// itself, which avoids an interface call per draw in the permutation loop.
+// rand.New(src).Uint64() is src.Uint64(), so a source seeded like NewRand
+// gives the same permutations as Shuffle.
+func shuffleFloats(src *rand.PCG, v []float64) {
 	for i := len(v) - 1; i > 0; i-- {
-		j := uintN(rng, uint64(i+1))
+		n := uint64(i + 1)
+		var j uint64
+		if n&(n-1) == 0 {
+			j = src.Uint64() & (n - 1)
+		} else {
+			hi, lo := bits.Mul64(src.Uint64(), n)
+			if lo < n {
+				thresh := -n % n
+				for lo < thresh {
+					hi, lo = bits.Mul64(src.Uint64(), n)
+				}
+			}
+			j = hi
+		}
 		v[i], v[j] = v[j], v[i]
 	}
 }
@@ -167,9 +182,9 @@ func PermCorrMany(x []float64, ys [][]float64, spearman bool, n int, seed uint64
 	if len(ts) == 0 {
 		return p, pMax
 	}
-	rng := NewRand(seed)
+	src := rand.NewPCG(seed, pcgStream) // the source of NewRand(seed)
 	for range n {
-		shuffleFloats(rng, a)
+		shuffleFloats(src, a)
 		maxAbs := 0.0
 		for i := range ts {
 			v := math.Abs(floats.Dot(a, ts[i].b))

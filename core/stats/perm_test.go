@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"math"
 	"math/bits"
+	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"slices"
@@ -66,10 +67,35 @@ func TestUintNMatchesIntN(t *testing.T) {
 	for i := range 10000 {
 		n := i%1000 + 1
 		if i%7 == 0 {
-			n = 1<<40 + i
+			n = 1<<(bits.UintSize-24) + i // 2^40 + i where int is 64-bit
 		}
 		if got, want := uintN(a, uint64(n)), b.IntN(n); int(got) != want {
 			t.Fatalf("draw %d, n=%d: uintN = %d, IntN = %d", i, n, got, want)
+		}
+	}
+}
+
+// The allocation-free shuffle inside PermCorr draws the same permutations
+// as Shuffle with NewRand of the same seed.
+func TestShuffleFloatsMatchesShuffle(t *testing.T) {
+	for _, seed := range []uint64{0, 3, 1 << 40} {
+		rng := NewRand(seed)
+		src := rand.NewPCG(seed, pcgStream)
+		for _, n := range []int{1, 2, 7, 16, 33} {
+			perm := make([]int, n)
+			v := make([]float64, n)
+			for i := range perm {
+				perm[i], v[i] = i, float64(i)
+			}
+			for range 3 {
+				Shuffle(rng, perm)
+				shuffleFloats(src, v)
+				for i := range perm {
+					if float64(perm[i]) != v[i] {
+						t.Fatalf("seed %d n %d: Shuffle %v, shuffleFloats %v", seed, n, perm, v)
+					}
+				}
+			}
 		}
 	}
 }

@@ -122,6 +122,8 @@ def main():
     }
     for name, text in invalid.items():
         write(name, text)
+    with open(os.path.join(HERE, "invalid-utf16.csv"), "wb") as f:
+        f.write("time,Fz\n0,1\n0.5,2\n".encode("utf-16"))  # with its BOM
 
     write("trials.csv", "trial,rt,condition\n1,0.412,easy\n2,n/a,\"hard, late\"\n3,0.388,easy\n")
     write("trials-invalid-dup.csv", "trial,rt\n1,0.4\n2,0.5\n1,0.6\n")

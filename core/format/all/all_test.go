@@ -10,7 +10,7 @@ import (
 // TestRegistered checks that importing all registers the formats and that
 // CSV text reaches the csv fallback through format.Decode.
 func TestRegistered(t *testing.T) {
-	for _, name := range []string{"csv"} {
+	for _, name := range []string{"bdf", "csv", "edf", "f32", "mp3", "wav"} {
 		if !slices.Contains(format.Names(), name) {
 			t.Errorf("format %q is not registered; have %v", name, format.Names())
 		}

@@ -182,6 +182,7 @@ var invalidCases = []struct {
 	{"invalid-trial-id.csv", `csv: invalid-trial-id.csv:4:1: trial id is empty`, format.ErrSyntax},
 	{"invalid-quote.csv", `csv: invalid-quote.csv:1:2: quoted field does not end on this line`, format.ErrSyntax},
 	{"invalid-bare-quote.csv", `csv: invalid-bare-quote.csv:1:2: bare " in a field that does not start with a quote`, format.ErrSyntax},
+	{"invalid-utf16.csv", `csv: invalid-utf16.csv:1: not a text file (NUL bytes in the first line); UTF-16 text must be saved as UTF-8`, format.ErrUnsupported},
 	{"invalid-after-quote.csv", `csv: invalid-after-quote.csv:1:2: "x" after the closing quote`, format.ErrSyntax},
 }
 

@@ -85,6 +85,11 @@ type decoder struct {
 
 func (d *decoder) header(h []string) error {
 	r := d.r
+	for _, f := range h {
+		if strings.IndexByte(f, 0) >= 0 {
+			return r.Errorf(d.hdrLine, 0, format.ErrUnsupported, "not a text file (NUL bytes in the first line); UTF-16 text must be saved as UTF-8")
+		}
+	}
 	switch {
 	case strings.EqualFold(h[0], "trial"):
 		d.epoched, d.first = true, 2
@@ -150,7 +155,8 @@ func (d *decoder) value(s string, line, col int) (float32, error) {
 	if s == "" {
 		return 0, d.r.Errorf(line, col, format.ErrSyntax, "value is empty")
 	}
-	v, err := strconv.ParseFloat(s, 32)
+	f, err := parseFloat32(s)
+	v := float64(f)
 	if err != nil {
 		if ne, ok := err.(*strconv.NumError); ok && ne.Err == strconv.ErrRange {
 			return 0, d.r.Errorf(line, col, format.ErrSyntax, "%s is out of range for float32", quote(s))
@@ -167,7 +173,7 @@ func (d *decoder) time(s string, line, col int) (float64, error) {
 	if s == "" {
 		return 0, d.r.Errorf(line, col, format.ErrSyntax, "time is empty")
 	}
-	v, err := strconv.ParseFloat(s, 64)
+	v, err := parseFloat64(s)
 	if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
 		return 0, d.r.Errorf(line, col, format.ErrSyntax, "time %s is not a finite number", quote(s))
 	}
