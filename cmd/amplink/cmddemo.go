@@ -8,6 +8,7 @@ import (
 	"os"
 	"path/filepath"
 
+	"amplink/core/data"
 	"amplink/core/demo"
 	"amplink/core/format/bids"
 	"amplink/core/format/csv"
@@ -73,9 +74,11 @@ func demoFiles() ([]namedFile, error) {
 		{"demo_epochs.csv", func(w io.Writer) error { return csv.WriteEpochs(w, ep) }},
 		{"demo_epochs.f32", func(w io.Writer) error { return f32.Write(w, &sidecar, ep) }},
 		{"demo_epochs.json", func(w io.Writer) error { _, err := w.Write(sidecar.Bytes()); return err }},
+		{"demo_epochs_trials.csv", func(w io.Writer) error { return writeTrials(w, ep) }},
 		{"demo_continuous.csv", func(w io.Writer) error { return csv.WriteRecording(w, rec) }},
 		{"demo_continuous_events.tsv", func(w io.Writer) error { return bids.WriteEvents(w, rec.Events) }},
 		{"demo_edf.edf", func(w io.Writer) error { return edf.Write(w, rec, edf.WriteOptions{}) }},
+		{"demo_edf_trials.csv", func(w io.Writer) error { return writeTrials(w, ep) }},
 		{"demo_wav.wav", func(w io.Writer) error { return wav.Write(w, rec, wav.Options{Encoding: wav.Float32}) }},
 		{"demo_wav_channels.tsv", func(w io.Writer) error { return bids.WriteChannels(w, rec.Channels, nil) }},
 		{"demo_wav_events.tsv", func(w io.Writer) error { return bids.WriteEvents(w, rec.Events) }},
@@ -109,10 +112,26 @@ Files (the same simulated session in every input form amplink reads):
   recipe.json                  the demo analysis
   demo_epochs.csv              epochs, -1.5 to 2.0 s around each tone (trial,time,<channels>)
   demo_epochs.f32/.json        the same epochs as float32 [trial][channel][sample] + sidecar
+  demo_epochs_trials.csv       per-trial response_time and outcome for both epoch files
   demo_continuous.csv          the continuous recording (time,<channels>)
   demo_continuous_events.tsv   its tone events (BIDS events.tsv, with response_time and outcome)
   demo_edf.edf                 the continuous recording as EDF+ with the tones as annotations
+  demo_edf_trials.csv          per-trial response_time and outcome for the EDF+ epochs
   demo_wav.wav                 the continuous recording as a 19-channel float32 WAV
   demo_wav_channels.tsv        names for the WAV's channels (BIDS channels.tsv)
   demo_wav_events.tsv          the tone events for the WAV
 `
+
+// writeTrials writes the per-trial table (trial,response_time,outcome) that
+// goes with the epoch files.
+func writeTrials(w io.Writer, e *data.Epochs) error {
+	if _, err := io.WriteString(w, "trial,response_time,outcome\n"); err != nil {
+		return err
+	}
+	for t, ev := range e.TrialInfo {
+		if _, err := fmt.Fprintf(w, "%d,%s,%s\n", t+1, ev.Extra["response_time"], ev.Extra["outcome"]); err != nil {
+			return err
+		}
+	}
+	return nil
+}

@@ -13,6 +13,7 @@ import (
 
 	"amplink/core/format"
 	_ "amplink/core/format/all"
+	"amplink/core/format/csv"
 	"amplink/core/recipe"
 	"amplink/core/report"
 )
@@ -40,6 +41,7 @@ func cmdRun(stdout, stderr io.Writer, args []string) error {
 	recipePath := fs.String("recipe", "", "the analysis recipe (JSON)")
 	outDir := fs.String("out", "amplink-out", "output directory")
 	eventsPath := fs.String("events", "", "events file (BIDS events.tsv) for continuous input")
+	trialsPath := fs.String("trials", "", "per-trial values (CSV trial,<name>...) for covariates and conditions")
 	workers := fs.Int("workers", 0, "parallel workers (0: one per core)")
 	files, err := parseInterleaved(fs, args)
 	if err != nil {
@@ -72,10 +74,22 @@ func cmdRun(stdout, stderr io.Writer, args []string) error {
 		defer f.Close()
 		events = &ef
 	}
+	var trials *csv.Table
+	if *trialsPath != "" {
+		tf, f, err := openFile(*trialsPath)
+		if err != nil {
+			return err
+		}
+		trials, err = csv.DecodeTrials(tf)
+		f.Close()
+		if err != nil {
+			return err
+		}
+	}
 	ctx := context.Background()
 	var all *report.Results
 	for _, path := range files {
-		res, err := runOne(ctx, stderr, rcp, path, events, *workers, len(files) > 1)
+		res, err := runOne(ctx, stderr, rcp, path, events, trials, *trialsPath, *workers, len(files) > 1)
 		if err != nil {
 			return err
 		}
@@ -101,7 +115,7 @@ func cmdRun(stdout, stderr io.Writer, args []string) error {
 	return nil
 }
 
-func runOne(ctx context.Context, stderr io.Writer, rcp *recipe.Recipe, path string, events *format.File, workers int, prefix bool) (*report.Results, error) {
+func runOne(ctx context.Context, stderr io.Writer, rcp *recipe.Recipe, path string, events *format.File, trials *csv.Table, trialsName string, workers int, prefix bool) (*report.Results, error) {
 	f, osf, err := openFile(path)
 	if err != nil {
 		return nil, err
@@ -112,6 +126,11 @@ func runOne(ctx context.Context, stderr io.Writer, rcp *recipe.Recipe, path stri
 	ds, err := recipe.Open(rcp, f, events, sib)
 	if err != nil {
 		return nil, err
+	}
+	if trials != nil {
+		if err := ds.AttachTrials(trials, trialsName); err != nil {
+			return nil, err
+		}
 	}
 	p, err := recipe.NewPlan(rcp, ds)
 	if err != nil {

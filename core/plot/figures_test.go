@@ -417,3 +417,19 @@ func TestDegenerateData(t *testing.T) {
 		})
 	}
 }
+
+func TestCustomFrame(t *testing.T) {
+	fr := Frame{Title: "wide", Width: 504, Height: 300, FontSize: 10}
+	svg, g := Scatter([]float64{1, 2, 3}, []float64{3, 1, 2}, ScatterOptions{Frame: fr})
+	if !strings.Contains(svg, `viewBox="0 0 504 300"`) || !strings.Contains(svg, `font-size="10"`) {
+		t.Error("custom size or font not applied")
+	}
+	if g.ViewW != 504 || g.ViewH != 300 || g.Left+g.Width > 504 {
+		t.Errorf("geometry %+v", g)
+	}
+	long := strings.Repeat("a long title ", 6)
+	svg, _ = Scatter([]float64{1, 2}, []float64{1, 2}, ScatterOptions{Frame: Frame{Title: long}, Stat: &Stat{R: 1, P: 0, N: 2}})
+	if !strings.Contains(svg, ">"+long+"</text>") || !strings.Contains(svg, ">r = 1.000, p &lt; 0.0001, n = 2</text>") {
+		t.Error("a long title should put the statistics on their own line")
+	}
+}

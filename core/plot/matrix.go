@@ -82,10 +82,12 @@ func Matrix(values [][]float64, labels []string, opt MatrixOptions) (string, Geo
 		ViewW: w, ViewH: h,
 	}
 	d := newDoc(w, h, font, opt.Title)
+	d.b.Grow(n * n * 110)
 	l := layout{w: w, h: h, font: font, titleLines: titles}
 	d.titles(l)
 
 	var hatch strings.Builder
+	d.raw(`<g shape-rendering="crispEdges">` + "\n")
 	for i := 0; i < n; i++ {
 		for j := 0; j < n; j++ {
 			v := values[i][j]
@@ -99,10 +101,18 @@ func Matrix(values [][]float64, labels []string, opt MatrixOptions) (string, Geo
 				tip += "undefined"
 				hatch.WriteString("M" + num(x) + " " + num(y+cell) + "l" + num(cell) + " " + num(-cell))
 			}
-			d.raw(`<rect x="`, num(x), `" y="`, num(y), `" width="`, num(cell), `" height="`, num(cell),
+			cw, ch := cell, cell
+			if j < n-1 {
+				cw += seamOverlap
+			}
+			if i < n-1 {
+				ch += seamOverlap
+			}
+			d.raw(`<rect x="`, num(x), `" y="`, num(y), `" width="`, num(cw), `" height="`, num(ch),
 				`" fill="`, fill, `"><title>`, esc(tip), "</title></rect>\n")
 		}
 	}
+	d.raw("</g>\n")
 	if hatch.Len() > 0 {
 		d.raw(`<path d="`, hatch.String(), `" stroke="#7a7a7a" stroke-width="0.7" fill="none" pointer-events="none"/>`+"\n")
 	}

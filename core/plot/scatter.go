@@ -78,7 +78,7 @@ func Scatter(x, y []float64, opt ScatterOptions) (string, Geometry) {
 	w, _, font := opt.Frame.size()
 	fr := opt.Frame
 	fr.XLabel, fr.XUnit, fr.YLabel, fr.YUnit = xt, "", yt, ""
-	l := newLayout(fr, titleLinesFor(opt.Title, opt.Stat.line(), w, font+1), ya.maxLabelWidth(font), 0)
+	l := newLayout(fr, titleLinesFor(opt.Title, opt.Stat.line(), w, font+1), ya.maxLabelWidth(font), xa.overhang(font))
 	g := l.geometry(xa.lo, xa.hi, ya.lo, ya.hi, false, false)
 	d := newDoc(l.w, l.h, l.font, opt.Title)
 	d.titles(l)

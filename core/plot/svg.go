@@ -304,6 +304,15 @@ func logAxis(lo, hi float64, grid []float64, title string) axis {
 	return a
 }
 
+// overhang is how far the last tick label reaches right of the axis end
+// (labels are centred on their ticks), plus a small gap.
+func (a axis) overhang(font float64) float64 {
+	if len(a.labels) == 0 {
+		return 0
+	}
+	return textWidth(a.labels[len(a.labels)-1], font)/2 + 3
+}
+
 func (a axis) maxLabelWidth(font float64) float64 {
 	w := 0.0
 	for _, l := range a.labels {

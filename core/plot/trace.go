@@ -60,7 +60,7 @@ func EnvelopeTrace(times, a, b []float64, opt EnvelopeOptions) (string, Geometry
 	ya := linearAxis(vlo, vhi, false, axisTitle(opt.YLabel, opt.YUnit))
 	w, _, font := opt.Frame.size()
 	titles := titleLinesFor(opt.Title, "", w, font+1)
-	l := newLayout(opt.Frame, titles, ya.maxLabelWidth(font), 0)
+	l := newLayout(opt.Frame, titles, ya.maxLabelWidth(font), xa.overhang(font))
 	l.top += font + 4 // legend row
 	g := l.geometry(xa.lo, xa.hi, ya.lo, ya.hi, false, false)
 	d := newDoc(l.w, l.h, l.font, opt.Title)
@@ -227,10 +227,15 @@ func GroupDots(labels []string, values []float64, opt GroupDotsOptions) (string,
 	}
 	fr := opt.Frame
 	fr.YUnit = ""
-	l := newLayout(fr, titleLinesFor(opt.Title, "", w, font+1), labW, 0)
+	l := newLayout(fr, titleLinesFor(opt.Title, "", w, font+1), labW, xa.overhang(font))
 	g := l.geometry(xa.lo, xa.hi, float64(max(rows, 1)), 0, false, false)
 	rowH := g.Height / float64(max(rows, 1))
 	lf := math.Min(font, math.Max(rowH*0.9, 5))
+	if lf < font {
+		// smaller row labels need less room
+		l = newLayout(fr, l.titleLines, labW*lf/font, xa.overhang(font))
+		g = l.geometry(xa.lo, xa.hi, float64(max(rows, 1)), 0, false, false)
+	}
 	stride := max(1, int(math.Ceil(lf/(rowH*0.95))))
 	d := newDoc(w, h, font, opt.Title)
 	d.titles(l)

@@ -9,6 +9,7 @@ import (
 	"amplink/core/data"
 	"amplink/core/format"
 	"amplink/core/format/bids"
+	"amplink/core/format/csv"
 )
 
 // Dataset is one recording ready for analysis: the continuous recording when
@@ -29,7 +30,10 @@ type Dataset struct {
 // Events come from events (a BIDS events.tsv) when it is not nil, otherwise
 // from a sibling "<stem>_events.tsv", otherwise from the file itself (EDF+
 // annotations). A sibling "<stem>_channels.tsv" marks bad channels and, for
-// audio files whose channels are unnamed, names them in order.
+// audio files whose channels are unnamed, names them in order. For epoched
+// or epoched-by-the-recipe input, a sibling "<stem>_trials.csv" (trial,<name>...) adds per-trial
+// values for covariates and conditions, matched by trial id (after
+// epoching, the 1-based number of the kept epoch).
 func Open(r *Recipe, f format.File, events *format.File, sib format.Siblings) (*Dataset, error) {
 	if sib == nil {
 		sib = format.NoSiblings{}
@@ -92,11 +96,25 @@ func Open(r *Recipe, f format.File, events *format.File, sib format.Siblings) (*
 		ds.Epochs = d.Epochs
 		ds.Format = d.Epochs.Format
 		ds.Notes = append(d.Epochs.Notes, ds.Notes...)
+
 		if r != nil && r.Epochs != nil {
 			ds.Notes = append(ds.Notes, "the input is already epoched, so the recipe's epochs block is not used")
 		}
 		if events != nil {
 			ds.Notes = append(ds.Notes, "the input is already epoched, so "+events.Name+" is not used")
+		}
+	}
+	if ds.Epochs != nil {
+		if tf, err := openSibling(sib, f.Name, "_trials.csv"); err == nil {
+			t, err := csv.DecodeTrials(tf)
+			if err != nil {
+				return nil, err
+			}
+			if err := ds.AttachTrials(t, tf.Name); err != nil {
+				return nil, err
+			}
+		} else if !errors.Is(err, format.ErrNoSibling) {
+			return nil, err
 		}
 	}
 	return ds, nil

@@ -103,6 +103,8 @@ func NewPlan(r *Recipe, ds *Dataset) (*Plan, error) {
 		switch a.Type {
 		case TypeTrialWindow:
 			f, err = p.planTrialWindow(path, a)
+		case TypeTFMap:
+			f, err = p.planTFMap(path, a)
 		case TypeEnvelope, TypeComodulogram:
 			f, err = p.planEnvelope(path, a)
 		default:

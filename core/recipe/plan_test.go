@@ -253,3 +253,115 @@ func TestCancel(t *testing.T) {
 		t.Error("a cancelled run returned no error")
 	}
 }
+
+// confounded makes epochs where a per-trial covariate drives both the seed
+// (A, 20 Hz before 0 s) and the target (B, 6 Hz after 0 s) amplitudes, with
+// no direct link, and a condition column: in "hit" trials the seed also
+// drives C, in "miss" trials it does not.
+func confounded(trials int) *data.Epochs {
+	e := synthTrials(trials, 0, 5)
+	rng := rand.New(rand.NewPCG(8, 8))
+	e.TrialInfo = make([]data.Event, trials)
+	for t := range trials {
+		c := rng.NormFloat64()
+		a := 4 * math.Exp(0.5*(0.9*c+0.44*rng.NormFloat64()))
+		b := 4 * math.Exp(0.5*(0.9*c+0.44*rng.NormFloat64()))
+		cond := "hit"
+		if t%2 == 1 {
+			cond = "miss"
+		}
+		cc := 4 * math.Exp(0.5*rng.NormFloat64())
+		if cond == "hit" {
+			cc = a
+		}
+		for ch, sp := range []struct{ f, t0, t1, amp float64 }{{20, -0.7, 0, a}, {6, 0.1, 0.9, b}, {6, 0.1, 0.9, cc}} {
+			x := e.Trial(t, ch)
+			for k := range x {
+				tt := e.Time(k)
+				x[k] = float32(rng.NormFloat64())
+				if tt >= sp.t0 && tt <= sp.t1 {
+					u := (tt - sp.t0) / (sp.t1 - sp.t0)
+					x[k] += float32(sp.amp * (0.5 - 0.5*math.Cos(2*math.Pi*u)) * math.Sin(2*math.Pi*sp.f*tt))
+				}
+			}
+		}
+		cv := strconv.FormatFloat(c, 'f', 6, 64)
+		if t%10 == 3 {
+			cv = "n/a"
+		}
+		e.TrialInfo[t] = data.Event{Type: cond, Extra: map[string]string{"arousal": cv}}
+	}
+	return e
+}
+
+func TestCovariatesAndConditions(t *testing.T) {
+	e := confounded(120)
+	res := runSynth(t, `{
+  "spectral": {"low": 3, "high": 40, "steps": 24, "cycles": [3, 8]},
+  "analyses": [
+    {"id": "plain", "type": "trial-window", "seed": {"channel": "A", "time": [-0.5, -0.1], "freq": [16, 24]},
+     "target": {"channel": "B", "time": [0.3, 0.7], "freq": [5, 7]}},
+    {"id": "partial", "type": "trial-window", "covariates": ["arousal", "trial"], "permutations": 199,
+     "seed": {"channel": "A", "time": [-0.5, -0.1], "freq": [16, 24]},
+     "target": {"channel": "B", "time": [0.3, 0.7], "freq": [5, 7]}},
+    {"id": "cond", "type": "trial-window", "conditions": {"column": "trial_type", "compare": ["hit", "miss"]}, "permutations": 199,
+     "seed": {"channel": "A", "time": [-0.5, -0.1], "freq": [16, 24]},
+     "target": {"channel": "C", "time": [0.3, 0.7], "freq": [5, 7]}}
+  ]
+}`, e)
+	plain := rowFor(t, res, "plain", "A", "B")
+	partial := rowFor(t, res, "partial", "A", "B")
+	// Common practice: a shared driver makes seed and target correlate; the
+	// partial correlation on the driver removes it.
+	if plain.R < 0.4 {
+		t.Errorf("confounded plain r = %.3f, want > 0.4", plain.R)
+	}
+	if math.Abs(partial.R) > 0.2 {
+		t.Errorf("partial r = %.3f, want near 0", partial.R)
+	}
+	// 12 of 120 trials lack the covariate; df = n − 2 − k.
+	if partial.N != 108 || field(partial, "df") != "104" || !strings.Contains(field(partial, "note"), "12 trials left out") {
+		t.Errorf("partial n = %d, df = %s, note %q", partial.N, field(partial, "df"), field(partial, "note"))
+	}
+	var hit, miss, diff report.Row
+	for _, r := range res.Rows {
+		if r.Analysis == "cond" {
+			switch field(r, "condition") {
+			case "hit":
+				hit = r
+			case "miss":
+				miss = r
+			case "hit-miss":
+				diff = r
+			}
+		}
+	}
+	if hit.N != 60 || miss.N != 60 {
+		t.Fatalf("condition sizes %d, %d", hit.N, miss.N)
+	}
+	if hit.R < 0.6 || math.Abs(miss.R) > 0.3 {
+		t.Errorf("r(hit) = %.3f, r(miss) = %.3f; want the coupling only in hit", hit.R, miss.R)
+	}
+	if diff.P > 0.01 || field(diff, "p_perm") != report.Num(1.0/200) {
+		t.Errorf("difference p = %.3g, p_perm = %s", diff.P, field(diff, "p_perm"))
+	}
+}
+
+func TestCovariateErrors(t *testing.T) {
+	e := confounded(30)
+	for _, tc := range []struct{ recipe, want string }{
+		{`{"analyses":[{"type":"trial-window","covariates":["rt"],"seed":{"channel":"A","time":[0,0.5],"freq":[5,7]},"target":{"channel":"B","time":[0,0.5],"freq":[5,7]}}]}`,
+			`analyses[0].covariates[0]: no per-trial column "rt"; columns are: arousal, trial, trial_type`},
+		{`{"analyses":[{"type":"trial-window","conditions":{"compare":["hit","false-alarm"]},"seed":{"channel":"A","time":[0,0.5],"freq":[5,7]},"target":{"channel":"B","time":[0,0.5],"freq":[5,7]}}]}`,
+			`analyses[0].conditions.compare[1]: no trial has trial_type = "false-alarm"; values are: "hit" (15), "miss" (15)`},
+	} {
+		r, err := Parse([]byte(tc.recipe))
+		if err != nil {
+			t.Fatal(err)
+		}
+		_, err = NewPlan(r, &Dataset{Name: "synth", Epochs: e})
+		if err == nil || !strings.Contains(err.Error(), tc.want) {
+			t.Errorf("error %v, want %q", err, tc.want)
+		}
+	}
+}

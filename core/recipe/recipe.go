@@ -95,6 +95,7 @@ type Analysis struct {
 	Covariates   []string    `json:"covariates,omitempty"`
 	Conditions   *Conditions `json:"conditions,omitempty"`
 	Threshold    float64     `json:"clusterThreshold,omitempty"` // cluster-forming p, default 0.05
+	TimeStep     float64     `json:"timeStep,omitempty"`         // tf-map: s between map columns, default 0.02
 }
 
 // Analysis types.
@@ -301,7 +302,7 @@ func parseAnalysis(path string, v any) (Analysis, error) {
 		a.Method = "spearman"
 		keys = append(keys, "seed", "target")
 		if a.Type == TypeTFMap {
-			keys = append(keys, "clusterThreshold")
+			keys = append(keys, "clusterThreshold", "timeStep")
 		}
 	case TypeEnvelope, TypeComodulogram:
 		a.Method = "pearson"
@@ -403,6 +404,13 @@ func parseAnalysis(path string, v any) (Analysis, error) {
 			}
 			if !(a.Threshold > 0 && a.Threshold < 1) {
 				return a, ferr(path+".clusterThreshold", "must be a p-value between 0 and 1")
+			}
+			a.TimeStep = 0.02
+			if err := o.num("timeStep", &a.TimeStep); err != nil {
+				return a, err
+			}
+			if !(a.TimeStep > 0) {
+				return a, ferr(path+".timeStep", "must be a positive time in seconds")
 			}
 		}
 	case TypeEnvelope, TypeComodulogram:
