@@ -10,7 +10,7 @@ import (
 // Channel describes one signal.
 type Channel struct {
 	Name  string // the name used in recipes, e.g. "Fz"
-	Label string // the label as stored in the file, e.g. "EEG Fz-Ref"; empty if equal to Name
+	Label string // the label as stored in the file, e.g. "EEG Fz-Ref"; may be empty or equal to Name
 	Type  string // e.g. "EEG", "MEG", "LFP", "AUDIO"; may be empty
 	Unit  string // physical unit, e.g. "uV"; may be empty
 }

@@ -115,6 +115,11 @@ func NewPlan(r *Recipe, ds *Dataset) (*Plan, error) {
 		}
 		p.finish = append(p.finish, f)
 	}
+	if r.Figures.Enabled {
+		if err := p.planFigures(); err != nil {
+			return nil, err
+		}
+	}
 	return p, nil
 }
 
@@ -270,6 +275,11 @@ func (p *Plan) Finish(ctx context.Context, res []UnitResult) (*report.Results, e
 			return nil, err
 		}
 		if err := f.finish(ctx, p, sorted, out); err != nil {
+			return nil, err
+		}
+	}
+	if p.r.Figures.Enabled {
+		if err := p.drawFigures(ctx, sorted, out); err != nil {
 			return nil, err
 		}
 	}

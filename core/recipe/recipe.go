@@ -11,7 +11,14 @@ import (
 type Recipe struct {
 	Epochs   *EpochSpec `json:"epochs,omitempty"`
 	Spectral Spectral   `json:"spectral"`
+	Figures  Figures    `json:"figures"`
 	Analyses []Analysis `json:"analyses"`
+}
+
+// Figures controls the SVG figures a run draws.
+type Figures struct {
+	Enabled    bool   `json:"enabled"`    // default true
+	PowerScale string `json:"powerScale"` // colour scale of power maps: "log" (default) or "linear"
 }
 
 // EpochSpec cuts continuous input into epochs around events.
@@ -163,6 +170,34 @@ func Parse(b []byte) (*Recipe, error) {
 			return nil, err
 		}
 	}
+	r.Figures = Figures{Enabled: true, PowerScale: "log"}
+	if fv, ok := top.get("figures"); ok {
+		switch t := fv.(type) {
+		case bool:
+			r.Figures.Enabled = t
+		default:
+			o, err := asObj("figures", fv)
+			if err != nil {
+				return nil, ferr("figures", "must be true, false or {\"enabled\", \"powerScale\"}")
+			}
+			if v, ok := o.get("enabled"); ok {
+				b, isBool := v.(bool)
+				if !isBool {
+					return nil, ferr("figures.enabled", "must be true or false")
+				}
+				r.Figures.Enabled = b
+			}
+			if err := o.str("powerScale", &r.Figures.PowerScale); err != nil {
+				return nil, err
+			}
+			if r.Figures.PowerScale != "log" && r.Figures.PowerScale != "linear" {
+				return nil, ferr("figures.powerScale", "%q is not a scale; use \"log\" or \"linear\"", r.Figures.PowerScale)
+			}
+			if err := o.done("enabled", "powerScale"); err != nil {
+				return nil, err
+			}
+		}
+	}
 	av, ok := top.get("analyses")
 	if !ok {
 		return nil, ferr("analyses", "is required: a list of analyses")
@@ -186,7 +221,7 @@ func Parse(b []byte) (*Recipe, error) {
 		ids[an.ID] = true
 		r.Analyses = append(r.Analyses, an)
 	}
-	if err := top.done("epochs", "spectral", "analyses"); err != nil {
+	if err := top.done("epochs", "spectral", "figures", "analyses"); err != nil {
 		return nil, err
 	}
 	return r, nil

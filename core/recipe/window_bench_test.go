@@ -1,0 +1,60 @@
+package recipe_test
+
+import (
+	"context"
+	"fmt"
+	"testing"
+
+	"amplink/cmd/amplink-workload/workload"
+	"amplink/core/recipe"
+)
+
+// BenchmarkStandardWindow runs the standard trial-window workload
+// (cmd/amplink-workload: 32 channels, 2.5 s epochs at 500 Hz, 40 frequencies,
+// 32 × 32 Spearman rows) in memory through recipe.Run, for a reduced and the
+// full trial count, and through Plan.ComputeAll with 1 and 2 workers. It
+// reports trial-channels processed per second (each is two window powers:
+// seed and target).
+func BenchmarkStandardWindow(b *testing.B) {
+	rc, err := recipe.Parse([]byte(workload.StdRecipe))
+	if err != nil {
+		b.Fatal(err)
+	}
+	for _, trials := range []int{50, workload.StdTrials} {
+		e := workload.Epochs(trials, 1)
+		ds := &recipe.Dataset{Name: "workload.f32", Format: "f32", Epochs: e}
+		perOp := float64(trials * len(e.Channels))
+		b.Run(fmt.Sprintf("trials=%d/Run", trials), func(b *testing.B) {
+			b.ReportAllocs()
+			for b.Loop() {
+				res, err := recipe.Run(context.Background(), rc, ds, nil)
+				if err != nil {
+					b.Fatal(err)
+				}
+				if len(res.Rows) != 1024 {
+					b.Fatalf("%d rows, want 1024", len(res.Rows))
+				}
+			}
+			b.ReportMetric(perOp*float64(b.N)/b.Elapsed().Seconds(), "trialchans/s")
+		})
+		for _, workers := range []int{1, 2} {
+			b.Run(fmt.Sprintf("trials=%d/workers=%d", trials, workers), func(b *testing.B) {
+				b.ReportAllocs()
+				for b.Loop() {
+					p, err := recipe.NewPlan(rc, ds)
+					if err != nil {
+						b.Fatal(err)
+					}
+					res, err := p.ComputeAll(context.Background(), workers, nil)
+					if err != nil {
+						b.Fatal(err)
+					}
+					if _, err := p.Finish(context.Background(), res); err != nil {
+						b.Fatal(err)
+					}
+				}
+				b.ReportMetric(perOp*float64(b.N)/b.Elapsed().Seconds(), "trialchans/s")
+			})
+		}
+	}
+}
