@@ -121,6 +121,11 @@ var ErrRankDeficient = errors.New("the channels' band signals are linearly depen
 // Colclough et al. 2015, NeuroImage 117:439). Each row of W·Z is then scaled
 // back to its original norm, which does not change any correlation.
 func SymmetricWeights(gram []float64, n int) ([]float64, error) {
+	for _, v := range gram {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return nil, errors.New("the band signals contain non-finite values")
+		}
+	}
 	sym := mat.NewSymDense(n, append([]float64(nil), gram...))
 	var eig mat.EigenSym
 	if !eig.Factorize(sym, true) {

@@ -126,6 +126,9 @@ func ShortName(label string) string {
 // exact stored label, then the ShortName of the label, all case-insensitively
 // for the last step. It returns -1 when nothing matches.
 func Lookup(chs []Channel, name string) int {
+	if name == "" {
+		return -1
+	}
 	for i, c := range chs {
 		if c.Name == name {
 			return i

@@ -17,6 +17,10 @@ func Epoch(r *Recording, events []Event, eventType string, start, end float64) (
 	if events == nil {
 		events = r.Events
 	}
+	const limit = 1e7 // s; far beyond any recording, small enough to round safely
+	if math.IsNaN(start) || math.IsNaN(end) || math.Abs(start) > limit || math.Abs(end) > limit {
+		return nil, fmt.Errorf("epochs: start %g s and end %g s must be finite times within ±%g s", start, end, limit)
+	}
 	if !(end > start) {
 		return nil, fmt.Errorf("epochs: end %g s is not after start %g s", end, start)
 	}
@@ -35,6 +39,10 @@ func Epoch(r *Recording, events []Event, eventType string, start, end float64) (
 			continue
 		}
 		matched++
+		if math.IsNaN(ev.Onset) || math.Abs(ev.Onset-r.Start) > limit {
+			dropped++ // an onset that cannot lie in the recording
+			continue
+		}
 		e := int(math.Round((ev.Onset - r.Start) * r.Rate))
 		if e+s0 < 0 || e+s1 >= n {
 			dropped++

@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"io"
 	"math"
+	"regexp"
 	"strconv"
 )
 
@@ -121,6 +122,9 @@ func WriteMapCSV(w io.Writer, m *Map) error {
 	return cw.Error()
 }
 
+// jsonNumber is the JSON number grammar (RFC 8259 section 6).
+var jsonNumber = regexp.MustCompile(`^-?(0|[1-9][0-9]*)(\.[0-9]+)?([eE][+-]?[0-9]+)?$`)
+
 type jsonOut struct {
 	Columns  []string            `json:"columns"`
 	Rows     []map[string]any    `json:"rows"`
@@ -147,7 +151,7 @@ func WriteJSON(w io.Writer, res *Results) error {
 				m[c] = nil
 				continue
 			}
-			if _, err := strconv.ParseFloat(v, 64); err == nil && c != "seed" && c != "target" && c != "analysis" {
+			if jsonNumber.MatchString(v) && c != "seed" && c != "target" && c != "analysis" && c != "recording" {
 				m[c] = json.Number(v)
 				continue
 			}
