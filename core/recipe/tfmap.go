@@ -6,6 +6,8 @@ import (
 	"math"
 	"strconv"
 
+	"gonum.org/v1/gonum/blas"
+	"gonum.org/v1/gonum/blas/blas64"
 	"gonum.org/v1/gonum/floats"
 	"gonum.org/v1/gonum/stat/distuv"
 
@@ -43,6 +45,11 @@ type tfTarget struct {
 	unit int
 }
 
+// planTFMap checks a tf-map analysis and plans its units: the seed window
+// (shared with any analysis using the same window, see windowUnit) and one
+// kindTFPower unit per target channel. The map has a row for every grid
+// frequency inside target.freq and a column every round(timeStep·rate)
+// samples from the first sample inside target.time.
 func (p *Plan) planTFMap(path string, a *Analysis) (finisher, error) {
 	e, err := p.epochs(path, a.Type)
 	if err != nil {
@@ -64,6 +71,13 @@ func (p *Plan) planTFMap(path string, a *Analysis) (finisher, error) {
 	if err != nil {
 		return nil, err
 	}
+	seen := map[int]bool{}
+	for i, c := range targChs {
+		if seen[c] {
+			return nil, ferr(fmt.Sprintf("%s.target.channel[%d]", path, i), "%q is listed twice (it names output maps)", e.Channels[c].Name)
+		}
+		seen[c] = true
+	}
 	ts, err := p.span(path+".target", a.Target, e)
 	if err != nil {
 		return nil, err
@@ -72,6 +86,10 @@ func (p *Plan) planTFMap(path string, a *Analysis) (finisher, error) {
 		return nil, ferr(path, "needs at least 3 trials to correlate, %s has %d", p.ds.Name, e.NTrials)
 	}
 	switch {
+	case len(a.Covariates) > 0:
+		return nil, ferr(path+".covariates", "are not available for tf-map analyses; a trial-window analysis gives partial correlations")
+	case a.Conditions != nil:
+		return nil, ferr(path+".conditions", "are not available for tf-map analyses; a trial-window analysis compares conditions")
 	case a.Correction == "cluster" && a.Permutations < 1:
 		return nil, ferr(path+".permutations", "the cluster test needs trial shuffles: set permutations (for example 1000), not %d", a.Permutations)
 	case a.Correction != "cluster" && a.Permutations > 0:
@@ -134,8 +152,9 @@ type tfStats struct {
 	// row-major pixel px = row·cols + col; NaN when undefined.
 	r [][]float64
 	// a is the seed's (ranked,) centred, unit-norm vector, nil when the
-	// seed is constant; b[m][px·n:(px+1)·n] the same for each defined pixel
-	// (zero otherwise), so that r = a·b.
+	// seed is constant; b[m] holds the same for each defined pixel (zero
+	// otherwise) trial-major, b[m][t·rows·cols + px], so that the r of the
+	// pixels is the vector–matrix product a·b[m].
 	a []float64
 	b [][]float64
 }
@@ -158,6 +177,7 @@ func newTFStats(seed []float64, maps [][]float64, rows, cols int, spearman bool)
 		s.a = a
 	}
 	buf := make([]float64, n)
+	u := make([]float64, n)
 	for _, m := range maps {
 		if len(m) != np*n {
 			panic("recipe: tf-map values do not match the map shape")
@@ -174,9 +194,12 @@ func newTFStats(seed []float64, maps [][]float64, rows, cols int, spearman bool)
 				continue
 			}
 			r[px] = stats.Pearson(x, y)
-			if math.IsNaN(r[px]) || !unitCentre(b[px*n:(px+1)*n], y) {
+			if math.IsNaN(r[px]) || !unitCentre(u, y) {
 				r[px] = math.NaN()
-				clear(b[px*n : (px+1)*n])
+				continue
+			}
+			for t, v := range u {
+				b[t*np+px] = v
 			}
 		}
 		s.r = append(s.r, r)
@@ -203,6 +226,9 @@ func unitCentre(dst, v []float64) bool {
 // tOf is the t statistic t = r·√(df/(1−r²)) of a correlation; ±Inf at |r| = 1.
 func tOf(r, df float64) float64 { return r * math.Sqrt(df/(1-r*r)) }
 
+// permBatch is how many shuffles share one pass over the pixel vectors.
+const permBatch = 32
+
 // tfClusters is the result of the cluster-based permutation test.
 type tfClusters struct {
 	tcrit  float64     // cluster-forming threshold on |t|
@@ -228,7 +254,8 @@ type tfClusters struct {
 //     (stats.ClusterP), which controls the family-wise error over clusters
 //     and maps.
 //
-// Each shuffle costs one dot product per pixel and allocates nothing.
+// Each shuffle costs one dot product per pixel (done as one matrix product
+// per batch of shuffles and map); the loop allocates nothing per shuffle.
 func (s *tfStats) clusterTest(ctx context.Context, alpha float64, perms int, seed uint64) (*tfClusters, error) {
 	n, np := s.n, s.rows*s.cols
 	df := float64(n - 2)
@@ -267,34 +294,45 @@ func (s *tfStats) clusterTest(ctx context.Context, alpha float64, perms int, see
 	for i := range perm {
 		perm[i] = i
 	}
-	ap := make([]float64, n)
-	tb := make([]float64, np)
+	// Shuffles are taken permBatch at a time, so that one matrix product
+	// per map gives the r of every pixel under each of them and each map's
+	// vectors are read once per batch rather than once per shuffle.
+	ap := make([]float64, permBatch*n)
+	rb := make([]float64, permBatch*np)
+	mx := make([]float64, permBatch)
 	sc := newClusterScratch(s.rows, s.cols)
 	cl.null = make([]float64, perms)
-	for k := range perms {
-		if k%8 == 0 {
-			if err := ctx.Err(); err != nil {
-				return nil, err
+	for k0 := 0; k0 < perms; k0 += permBatch {
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
+		nb := min(permBatch, perms-k0)
+		for q := range nb {
+			stats.Shuffle(rng, perm)
+			row := ap[q*n : (q+1)*n]
+			for i, j := range perm {
+				row[i] = s.a[j]
 			}
+			mx[q] = 0
 		}
-		stats.Shuffle(rng, perm)
-		for i, j := range perm {
-			ap[i] = s.a[j]
-		}
-		mx := 0.0
+		A := blas64.General{Rows: nb, Cols: n, Stride: n, Data: ap}
+		C := blas64.General{Rows: nb, Cols: np, Stride: np, Data: rb}
 		for m, b := range s.b {
+			blas64.Gemm(blas.NoTrans, blas.NoTrans, 1, A, blas64.General{Rows: n, Cols: np, Stride: np, Data: b}, 0, C)
 			r := s.r[m]
-			for px := range tb {
-				if math.IsNaN(r[px]) {
-					tb[px] = math.NaN()
-					continue
+			for q := range nb {
+				tb := rb[q*np : (q+1)*np]
+				for px, v := range tb {
+					if math.IsNaN(r[px]) {
+						tb[px] = math.NaN()
+					} else {
+						tb[px] = tOf(max(-1, min(1, v)), df)
+					}
 				}
-				v := floats.Dot(ap, b[px*n:(px+1)*n])
-				tb[px] = tOf(max(-1, min(1, v)), df)
+				mx[q] = max(mx[q], sc.maxAbsSum(tb, cl.tcrit))
 			}
-			mx = max(mx, sc.maxAbsSum(tb, cl.tcrit))
 		}
-		cl.null[k] = mx
+		copy(cl.null[k0:], mx[:nb])
 	}
 	cl.p = stats.ClusterP(cl.sums, cl.null)
 	return cl, nil
