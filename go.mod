@@ -3,9 +3,14 @@ module amplink
 go 1.26.8
 
 require (
+	github.com/chromedp/cdproto v0.159.0
+	github.com/chromedp/chromedp v0.23.0
 	github.com/hajimehoshi/go-mp3 v0.3.4
 	github.com/maxence-charriere/go-app/v9 v9.8.0
 	gonum.org/v1/gonum v0.17.0
 )
 
-require github.com/google/uuid v1.3.0 // indirect
+require (
+	github.com/go-json-experiment/json v0.0.0-20260213210345-44df1a37e875 // indirect
+	github.com/google/uuid v1.3.0 // indirect
+)

@@ -125,10 +125,10 @@ func GroupRows(rows []Row, groups map[string]string, level float64) ([]Row, erro
 		return nil, fmt.Errorf("group: level %v is not in (0, 1)", level)
 	}
 	var tests []*groupTest
-	index := map[TestID]*groupTest{}
+	index := map[TestID]int{} // test → position in tests
 	type seenKey struct {
-		id  TestID
-		rec string
+		test int
+		rec  string
 	}
 	seen := map[seenKey]int{} // (test, recording) → 1-based row
 	var recOrder []string
@@ -143,7 +143,14 @@ func GroupRows(rows []Row, groups map[string]string, level float64) ([]Row, erro
 		if !ok || rec == "" {
 			return nil, fmt.Errorf("group: row %d (%s): no recording", i+1, id)
 		}
-		key := seenKey{id, rec}
+		ti, ok := index[id]
+		if !ok {
+			ti = len(tests)
+			index[id] = ti
+			tests = append(tests, &groupTest{id: id})
+		}
+		gt := tests[ti]
+		key := seenKey{ti, rec}
 		if prev, dup := seen[key]; dup {
 			return nil, fmt.Errorf("group: recording %q has test %s twice (rows %d and %d)", rec, id, prev, i+1)
 		}
@@ -151,12 +158,6 @@ func GroupRows(rows []Row, groups map[string]string, level float64) ([]Row, erro
 		if !recSeen[rec] {
 			recSeen[rec] = true
 			recOrder = append(recOrder, rec)
-		}
-		gt := index[id]
-		if gt == nil {
-			gt = &groupTest{id: id}
-			index[id] = gt
-			tests = append(tests, gt)
 		}
 		r := row.R
 		switch {

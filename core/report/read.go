@@ -41,9 +41,17 @@ func (e *ReadError) Unwrap() error { return ErrFormat }
 // differs from the header's, an n that is not an integer, an r or p that is
 // not a finite number, and a CSV quoting error.
 func ReadCSV(r io.Reader, name string) (*Results, error) {
+	res, _, err := ReadCSVLines(r, name)
+	return res, err
+}
+
+// ReadCSVLines is ReadCSV that also returns, for each row, the line on
+// which it starts (1-based; the header is line 1), for later messages
+// about a row.
+func ReadCSVLines(r io.Reader, name string) (*Results, []int, error) {
 	b, err := io.ReadAll(r)
 	if err != nil {
-		return nil, fmt.Errorf("%s: %w", name, err)
+		return nil, nil, fmt.Errorf("%s: %w", name, err)
 	}
 	b = bytes.TrimPrefix(b, []byte("\xef\xbb\xbf"))
 	cr := csv.NewReader(bytes.NewReader(b))
@@ -61,17 +69,17 @@ func ReadCSV(r io.Reader, name string) (*Results, error) {
 	}
 	header, err := cr.Read()
 	if err == io.EOF {
-		return nil, fail(1, 1, "empty table: no header line")
+		return nil, nil, fail(1, 1, "empty table: no header line")
 	}
 	if err != nil {
-		return nil, parseErr(err)
+		return nil, nil, parseErr(err)
 	}
 	hline, _ := cr.FieldPos(0)
 	pos := make(map[string]int, len(header))
 	for i, h := range header {
 		if j, dup := pos[h]; dup {
 			_, col := cr.FieldPos(i)
-			return nil, fail(hline, col, "column %q repeats column %d", h, j+1)
+			return nil, nil, fail(hline, col, "column %q repeats column %d", h, j+1)
 		}
 		pos[h] = i
 	}
@@ -80,24 +88,25 @@ func ReadCSV(r io.Reader, name string) (*Results, error) {
 	for k, c := range Fixed {
 		i, ok := pos[c]
 		if !ok {
-			return nil, fail(hline, 1, "missing column %q", c)
+			return nil, nil, fail(hline, 1, "missing column %q", c)
 		}
 		fixed[k] = i
 		isFixed[i] = true
 	}
 	res := &Results{}
+	var lines []int
 	for {
 		rec, err := cr.Read()
 		if err == io.EOF {
 			break
 		}
 		if err != nil {
-			return nil, parseErr(err)
+			return nil, nil, parseErr(err)
 		}
 		line, _ := cr.FieldPos(0)
 		if len(rec) != len(header) {
 			_, col := cr.FieldPos(max(len(rec), 1) - 1)
-			return nil, fail(line, col, "%d cells, the header has %d", len(rec), len(header))
+			return nil, nil, fail(line, col, "%d cells, the header has %d", len(rec), len(header))
 		}
 		row := Row{
 			Analysis: rec[fixed[0]], Type: rec[fixed[1]], Seed: rec[fixed[2]],
@@ -106,7 +115,7 @@ func ReadCSV(r io.Reader, name string) (*Results, error) {
 		i := fixed[5]
 		if row.N, err = strconv.Atoi(rec[i]); err != nil {
 			_, col := cr.FieldPos(i)
-			return nil, fail(line, col, "n: %q is not an integer", rec[i])
+			return nil, nil, fail(line, col, "n: %q is not an integer", rec[i])
 		}
 		for _, c := range []struct {
 			idx  int
@@ -121,7 +130,7 @@ func ReadCSV(r io.Reader, name string) (*Results, error) {
 			f, err := strconv.ParseFloat(v, 64)
 			if err != nil || math.IsInf(f, 0) || math.IsNaN(f) {
 				_, col := cr.FieldPos(c.idx)
-				return nil, fail(line, col, "%s: %q is not a finite number", c.name, v)
+				return nil, nil, fail(line, col, "%s: %q is not a finite number", c.name, v)
 			}
 			*c.dst = f
 		}
@@ -132,6 +141,7 @@ func ReadCSV(r io.Reader, name string) (*Results, error) {
 			}
 		}
 		res.Rows = append(res.Rows, row)
+		lines = append(lines, line)
 	}
-	return res, nil
+	return res, lines, nil
 }

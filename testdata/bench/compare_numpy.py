@@ -114,7 +114,8 @@ def main():
     nfft = scipy.fft.next_fast_len(ns + 2 * hmax, real=True)
 
     t1 = time.perf_counter()
-    X = scipy.fft.rfft(x, n=nfft, axis=-1, workers=args.workers)  # (trials, channels, nfft//2+1)
+    # float64, as amplink computes (scipy.fft would keep float32 input in single precision).
+    X = scipy.fft.rfft(x.astype(np.float64), n=nfft, axis=-1, workers=args.workers)  # (trials, channels, nfft//2+1)
     del x
     lap["rfft"] = time.perf_counter() - t1
 
