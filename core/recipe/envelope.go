@@ -56,7 +56,6 @@ type envPlan struct {
 	como    bool
 	freqs   []float64
 	discard float64 // s discarded at the edges of each trial or of the recording
-	weights []float64
 }
 
 // term is one pair of series to correlate: series indices into the unit's
@@ -401,7 +400,6 @@ func (ep *envPlan) symmetric(z [][]complex128) error {
 	if err != nil {
 		return ferr(ep.path+".orthogonalize", "%v; drop a channel (for example one of an average-referenced set) or use pairwise orthogonalisation", err)
 	}
-	ep.weights = w
 	m := len(z[0])
 	out := make([][]complex128, n)
 	for i := range n {

@@ -26,7 +26,8 @@ import (
 //     with the analysis's seed window drawn on its seed channels and its
 //     target window on its target channels (each only where it applies);
 //     a sanity view, with no normalisation of single trials;
-//   - trial-window: <id>_scatter_<seed>_<target> for every row (one per
+//   - trial-window: <id>_scatter_<seed>_<target> for every row, or for the
+//     figScatterMax rows with the largest |r| when there are more (one per
 //     condition, suffixed _<condition>, when conditions are compared), the
 //     trial values behind r: ranks for Spearman, and the residuals after the
 //     covariates for a partial correlation;
@@ -39,13 +40,16 @@ import (
 //   - comodulogram: <id>_comodulogram.
 //
 // The power maps are units of kind "tf-power" (one per channel, shared by
-// the analyses). They cost about as many inverse FFTs per trial as there are
-// grid frequencies, several times a window analysis, so only the seed
-// channels get a map, plus every target channel when an analysis has at
-// most figPowerTargets of them; an analysis with more target channels
-// (such as "*") draws the maps of the target channels of its
-// figPowerTargets strongest rows (largest |r|), computed when the figures
-// are drawn.
+// the analyses). A map costs one inverse FFT of the whole epoch per trial
+// and grid frequency; on the demo one channel's map costs about half of all
+// three trial-window analyses together, so maps are drawn for few
+// channels: every seed channel and every target channel of an analysis
+// whose side (seed or target) has at most figPowerTargets channels, and,
+// for a side with more (such as "*"), the channels of that side with the
+// figPowerTargets strongest rows (largest |r|, first in table order on
+// ties). Those last maps can only be chosen once the rows exist, so they
+// are computed when the figures are drawn (in parallel, on GOMAXPROCS
+// goroutines) rather than as units.
 
 // kindFigPower is the unit kind of a trial-averaged power map for figures.
 const kindFigPower = "tf-power"
@@ -54,7 +58,8 @@ const kindFigPower = "tf-power"
 // ⌈samples/figPowerCols⌉ samples.
 const figPowerCols = 250
 
-// figPowerTargets is how many target channels of an analysis get a power map.
+// figPowerTargets is how many channels of one side (seed or target) of an
+// analysis get a power map when the side has more.
 const figPowerTargets = 3
 
 // figStretch is the length in seconds of the envelope time-course figure
@@ -96,9 +101,11 @@ func figSides(a *Analysis, e *data.Epochs) (seeds, targets []int) {
 // unit for a: the seeds, and the targets when there are few.
 func (p *Plan) figPlannedChannels(a *Analysis, e *data.Epochs) []int {
 	seeds, targets := figSides(a, e)
-	out := append([]int(nil), seeds...)
-	if len(targets) <= figPowerTargets {
-		out = append(out, targets...)
+	var out []int
+	for _, side := range [][]int{seeds, targets} {
+		if len(side) <= figPowerTargets {
+			out = append(out, side...)
+		}
 	}
 	return out
 }
@@ -120,7 +127,7 @@ func (p *Plan) figPowerUnit(e *data.Epochs, ch int) int {
 			if err != nil {
 				return nil, err
 			}
-			out := make([]float64, 0, len(m)*len(m[0]))
+			var out []float64
 			for _, row := range m {
 				out = append(out, row...)
 			}
@@ -264,9 +271,10 @@ func powerUnit(ch data.Channel) string {
 	return strings.TrimSpace(ch.Unit) + "²"
 }
 
-// strongTargets returns the target channels of the k rows of analysis id
-// with the largest |r| (first in table order on ties), in that order.
-func (d *figDraw) strongTargets(id string, targets []int, k int) []int {
+// strongChannels returns the seed (or target) channels, among cands, of the
+// k rows of analysis id with the largest |r| (first in table order on
+// ties), in that order, each once.
+func (d *figDraw) strongChannels(id string, seed bool, cands []int, k int) []int {
 	e := d.p.ds.Epochs
 	type cand struct {
 		ch  int
@@ -278,7 +286,11 @@ func (d *figDraw) strongTargets(id string, targets []int, k int) []int {
 		if row.Analysis != id || math.IsNaN(row.R) || row.IsGroupRow() {
 			continue
 		}
-		c := data.Lookup(e.Channels, row.Target)
+		name := row.Target
+		if seed {
+			name = row.Seed
+		}
+		c := data.Lookup(e.Channels, name)
 		if c < 0 {
 			continue
 		}
@@ -287,7 +299,7 @@ func (d *figDraw) strongTargets(id string, targets []int, k int) []int {
 		}
 	}
 	var cs []cand
-	for _, t := range targets {
+	for _, t := range cands {
 		if b, ok := best[t]; ok {
 			cs = append(cs, b)
 		}
@@ -330,14 +342,26 @@ func (d *figDraw) powerMap(ch int) ([][]float64, error) {
 
 // powerChannels lists the channels whose power map analysis a draws: its
 // seeds, then its targets (or those of its strongest rows), each once.
-func (d *figDraw) powerChannels(a *Analysis) (chans []int, rule string) {
+func (d *figDraw) powerChannels(a *Analysis) (chans []int, byRule map[int]bool) {
 	seeds, targets := figSides(a, d.p.ds.Epochs)
-	all := append([]int(nil), seeds...)
-	if len(targets) <= figPowerTargets {
-		all = append(all, targets...)
-	} else {
-		all = append(all, d.strongTargets(a.ID, targets, figPowerTargets)...)
-		rule = fmt.Sprintf(" (target of one of the %d strongest rows)", figPowerTargets)
+	var all []int
+	byRule = map[int]bool{}
+	for k, side := range [][]int{seeds, targets} {
+		if len(side) <= figPowerTargets {
+			all = append(all, side...)
+			continue
+		}
+		for _, c := range d.strongChannels(a.ID, k == 0, side, figPowerTargets) {
+			all = append(all, c)
+			byRule[c] = true
+		}
+	}
+	for _, side := range [][]int{seeds, targets} {
+		if len(side) <= figPowerTargets {
+			for _, c := range side {
+				delete(byRule, c)
+			}
+		}
 	}
 	seen := map[int]bool{}
 	for _, c := range all {
@@ -346,7 +370,7 @@ func (d *figDraw) powerChannels(a *Analysis) (chans []int, rule string) {
 			chans = append(chans, c)
 		}
 	}
-	return chans, rule
+	return chans, byRule
 }
 
 // prefetch computes, in parallel, the power maps that no unit computed.
@@ -402,7 +426,7 @@ func (d *figDraw) powerFigures(a *Analysis) error {
 		return nil
 	}
 	seeds, targets := figSides(a, e)
-	chans, rule := d.powerChannels(a)
+	chans, byRule := d.powerChannels(a)
 	step := figPowerStep(e.NSamples)
 	times := make([]float64, spectral.TFCols(0, e.NSamples, step))
 	for j := range times {
@@ -431,18 +455,37 @@ func (d *figDraw) powerFigures(a *Analysis) error {
 		}
 		name := e.Channels[ch].Name
 		title := fmt.Sprintf("%s: %s power, mean of %d trials", a.ID, name, e.NTrials)
-		if rule != "" && !contains(seeds, ch) {
-			title += rule
+		caption := title
+		if byRule[ch] {
+			caption += fmt.Sprintf(" (a channel of one of the %d strongest rows)", figPowerTargets)
 		}
 		svg, _ := plot.TFPower(m, p.freqs, times, plot.TFPowerOptions{
-			Frame:       plot.Frame{Title: title, Width: 400, Height: 270},
+			Frame:       figFrame(title, 400, 270),
 			LogColour:   p.r.Figures.PowerScale != "linear",
 			Windows:     wins,
 			ColourLabel: "power", ColourUnit: powerUnit(e.Channels[ch]),
 		})
-		d.add(a.ID+"_tfpower_"+name, title, svg)
+		d.add(a.ID+"_tfpower_"+name, caption, svg)
 	}
 	return nil
+}
+
+// figFrame is a w × h frame, widened (up to 640) so that a one-line bold
+// title fits: its width is estimated from average sans-serif glyph widths
+// at the 10-unit title size.
+func figFrame(title string, w, h float64) plot.Frame {
+	est := 0.0
+	for _, r := range title {
+		switch {
+		case strings.ContainsRune(" .,:;il|'()[]-ftjr", r):
+			est += 0.34
+		case r >= 'A' && r <= 'Z', r == 'm', r == 'w':
+			est += 0.75
+		default:
+			est += 0.6
+		}
+	}
+	return plot.Frame{Title: title, Width: min(max(w, est*10+24), 640), Height: h}
 }
 
 func contains(s []int, v int) bool {
@@ -493,11 +536,15 @@ func (d *figDraw) scatterFigures(tw *twPlan) error {
 	for i, t := range tw.keep {
 		labels[i] = "trial " + strconv.Itoa(t+1)
 	}
+	draw := scatterPairs(tw, rows)
 	for _, s := range tw.seeds {
 		x := tw.values(d.res, s)
 		for _, t := range tw.targets {
 			if err := d.ctx.Err(); err != nil {
 				return err
+			}
+			if !draw[[2]string{s.name, t.name}] {
+				continue
 			}
 			y := tw.values(d.res, t)
 			if c := data.Lookup(e.Channels, t.name); c >= 0 {
@@ -543,6 +590,7 @@ func (d *figDraw) scatterFigures(tw *twPlan) error {
 					title += ", after " + strings.Join(a.Covariates, ", ")
 				}
 				opt.Title = title
+				opt.Width = figFrame(title, 360, 300).Width
 				if row, ok := rows[rowKey{a.ID, s.name, t.name, pt.cond}]; ok {
 					opt.Stat = &plot.Stat{Name: stat, R: row.R, P: row.P, N: row.N}
 				}
@@ -552,6 +600,41 @@ func (d *figDraw) scatterFigures(tw *twPlan) error {
 		}
 	}
 	return nil
+}
+
+// figScatterMax bounds the scatters of one analysis: with more seed ×
+// target pairs, only the pairs of the figScatterMax rows with the largest
+// |r| (first in table order on ties) are drawn.
+const figScatterMax = 24
+
+// scatterPairs returns the seed–target pairs whose scatter is drawn.
+func scatterPairs(tw *twPlan, rows map[rowKey]report.Row) map[[2]string]bool {
+	type cand struct {
+		key [2]string
+		r   float64
+		i   int
+	}
+	var cs []cand
+	for _, s := range tw.seeds {
+		for _, t := range tw.targets {
+			r := math.Inf(-1)
+			for k, row := range rows {
+				if k.seed == s.name && k.target == t.name && !math.IsNaN(row.R) {
+					r = math.Max(r, math.Abs(row.R))
+				}
+			}
+			cs = append(cs, cand{[2]string{s.name, t.name}, r, len(cs)})
+		}
+	}
+	if len(cs) > figScatterMax {
+		sort.SliceStable(cs, func(i, j int) bool { return cs[i].r > cs[j].r })
+		cs = cs[:figScatterMax]
+	}
+	out := make(map[[2]string]bool, len(cs))
+	for _, c := range cs {
+		out[c.key] = true
+	}
+	return out
 }
 
 func pickStrings(v []string, idx []int) []string {
@@ -632,6 +715,7 @@ func (d *figDraw) matrix(ep *envPlan) {
 		}
 	}
 	opt.Title = title
+	opt.Width = figFrame(title, 360, 300).Width
 	svg, _ := plot.Matrix(m.Values, ep.names, opt)
 	d.add(a.ID+"_matrix", title, svg)
 }
@@ -656,7 +740,7 @@ func (d *figDraw) comodulogram(ep *envPlan) {
 		title = fmt.Sprintf("%s: envelope r across frequencies on %s", a.ID, seed)
 	}
 	svg, _ := plot.CrossFreq(m.Values, sf, tf, plot.CrossFreqOptions{
-		Frame: plot.Frame{Title: title, XLabel: seed + " frequency", XUnit: "Hz", YLabel: target + " frequency", YUnit: "Hz", Width: 360, Height: 300},
+		Frame: plot.Frame{Title: title, XLabel: seed + " frequency", XUnit: "Hz", YLabel: target + " frequency", YUnit: "Hz", Width: figFrame(title, 360, 300).Width, Height: 300},
 	})
 	d.add(a.ID+"_comodulogram", title, svg)
 }
@@ -726,12 +810,12 @@ func (d *figDraw) tfCorr(a *Analysis) {
 		if len(seeds) > 0 {
 			seedName = e.Channels[seeds[0]].Name
 		}
-		title := fmt.Sprintf("%s: %s seed power with %s power across trials", a.ID, seedName, name)
+		title := fmt.Sprintf("%s: %s seed with %s power", a.ID, seedName, name)
 		if lab != nil {
-			title += fmt.Sprintf("; outlined: clusters with p ≤ %g", figClusterP)
+			title += fmt.Sprintf("; outlined: cluster p ≤ %g", figClusterP)
 		}
 		svg, _ := plot.TFCorr(m.Values, freqs, times, lab, outline, plot.TFCorrOptions{
-			Frame:     plot.Frame{Title: title, Width: 400, Height: 270},
+			Frame:     figFrame(title, 400, 270),
 			ValueName: stat,
 			Windows:   wins,
 		})
@@ -843,7 +927,7 @@ func (d *figDraw) envelopes(ep *envPlan) error {
 		unit = strings.TrimSuffix(powerUnit(ep.src.rec.Channels[ci]), "²")
 	}
 	svg, _ := plot.EnvelopeTrace(times, va, vb, plot.EnvelopeOptions{
-		Frame: plot.Frame{Title: title, YLabel: "amplitude", YUnit: unit, Width: 480, Height: 220},
+		Frame: plot.Frame{Title: title, YLabel: "amplitude", YUnit: unit, Width: figFrame(title, 480, 220).Width, Height: 220},
 		NameA: nameA, NameB: nameB,
 	})
 	d.add(a.ID+"_envelopes_"+ep.names[pr.i]+"_"+ep.names[pr.j], title, svg)

@@ -11,12 +11,17 @@ import (
 
 // BenchmarkStandardWindow runs the standard trial-window workload
 // (cmd/amplink-workload: 32 channels, 2.5 s epochs at 500 Hz, 40 frequencies,
-// 32 × 32 Spearman rows) in memory through recipe.Run, for a reduced and the
-// full trial count, and through Plan.ComputeAll with 1 and 2 workers. It
-// reports trial-channels processed per second (each is two window powers:
-// seed and target).
+// 32 × 32 Spearman rows, figures off) in memory through recipe.Run, for a
+// reduced and the full trial count, and through Plan.ComputeAll with 1 and 2
+// workers; "figures" is recipe.Run of the same analysis with the default
+// figures, which add trial-averaged power maps. It reports trial-channels
+// processed per second (each is two window powers: seed and target).
 func BenchmarkStandardWindow(b *testing.B) {
 	rc, err := recipe.Parse([]byte(workload.StdRecipe))
+	if err != nil {
+		b.Fatal(err)
+	}
+	rcFig, err := recipe.Parse([]byte(workload.StdRecipeFigures))
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -24,19 +29,27 @@ func BenchmarkStandardWindow(b *testing.B) {
 		e := workload.Epochs(trials, 1)
 		ds := &recipe.Dataset{Name: "workload.f32", Format: "f32", Epochs: e}
 		perOp := float64(trials * len(e.Channels))
-		b.Run(fmt.Sprintf("trials=%d/Run", trials), func(b *testing.B) {
-			b.ReportAllocs()
-			for b.Loop() {
-				res, err := recipe.Run(context.Background(), rc, ds, nil)
-				if err != nil {
-					b.Fatal(err)
-				}
-				if len(res.Rows) != 1024 {
-					b.Fatalf("%d rows, want 1024", len(res.Rows))
-				}
+		for _, c := range []struct {
+			name string
+			rc   *recipe.Recipe
+		}{{"Run", rc}, {"Run/figures", rcFig}} {
+			if c.rc == rcFig && trials != 50 {
+				continue
 			}
-			b.ReportMetric(perOp*float64(b.N)/b.Elapsed().Seconds(), "trialchans/s")
-		})
+			b.Run(fmt.Sprintf("trials=%d/%s", trials, c.name), func(b *testing.B) {
+				b.ReportAllocs()
+				for b.Loop() {
+					res, err := recipe.Run(context.Background(), c.rc, ds, nil)
+					if err != nil {
+						b.Fatal(err)
+					}
+					if len(res.Rows) != 1024 {
+						b.Fatalf("%d rows, want 1024", len(res.Rows))
+					}
+				}
+				b.ReportMetric(perOp*float64(b.N)/b.Elapsed().Seconds(), "trialchans/s")
+			})
+		}
 		for _, workers := range []int{1, 2} {
 			b.Run(fmt.Sprintf("trials=%d/workers=%d", trials, workers), func(b *testing.B) {
 				b.ReportAllocs()
