@@ -2,11 +2,13 @@ package main
 
 import (
 	"bytes"
+	stdcsv "encoding/csv"
 	"flag"
 	"math"
 	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -176,4 +178,52 @@ func TestRunErrors(t *testing.T) {
 			}
 		})
 	}
+}
+
+// Several recordings in one run: per-recording rows plus group rows that
+// pool Fisher z (r of identical recordings pools to the same r).
+func TestRunSeveralRecordings(t *testing.T) {
+	dir := t.TempDir()
+	in := writeFixture(t, dir)
+	b, _ := os.ReadFile(in)
+	in2 := filepath.Join(dir, "small2.csv")
+	os.WriteFile(in2, b, 0o644)
+	rp := filepath.Join(dir, "r.json")
+	os.WriteFile(rp, []byte(fixtureRecipe), 0o644)
+	out := filepath.Join(dir, "out")
+	var stdout, stderr bytes.Buffer
+	if err := run(&stdout, &stderr, []string{"run", "--recipe", rp, "--out", out, in, in2}); err != nil {
+		t.Fatalf("%v\n%s", err, stderr.String())
+	}
+	f, err := os.Open(filepath.Join(out, "results.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	recs, err := stdcsv.NewReader(f).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	col := map[string]int{}
+	for i, c := range recs[0] {
+		col[c] = i
+	}
+	if len(recs) != 1+3+3+3 {
+		t.Fatalf("%d lines, want header + 3 + 3 per-recording rows + 3 group rows", len(recs))
+	}
+	for i := 1; i <= 3; i++ {
+		per, grp := recs[i], recs[6+i]
+		if grp[col["recording"]] != "group" || grp[col["n"]] != "2" {
+			t.Errorf("row %v is not a group row over 2 recordings", grp)
+		}
+		if !approxEqual(per[col["r"]], grp[col["r"]]) {
+			t.Errorf("group r %s, want the recordings' common r %s", grp[col["r"]], per[col["r"]])
+		}
+	}
+}
+
+func approxEqual(a, b string) bool {
+	x, err1 := strconv.ParseFloat(a, 64)
+	y, err2 := strconv.ParseFloat(b, 64)
+	return err1 == nil && err2 == nil && math.Abs(x-y) < 1e-12
 }

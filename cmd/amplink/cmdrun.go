@@ -105,6 +105,14 @@ func cmdRun(stdout, stderr io.Writer, args []string) error {
 		all.Figures = append(all.Figures, res.Figures...)
 		all.Warnings = append(all.Warnings, res.Warnings...)
 	}
+	if len(files) > 1 {
+		// Group rows across the recordings (the same rows amplink merge adds).
+		g, err := report.GroupRows(all.Rows, nil, 0.95)
+		if err != nil {
+			return err
+		}
+		all.Rows = append(all.Rows, g...)
+	}
 	for _, w := range all.Warnings {
 		fmt.Fprintln(stderr, "note:", w)
 	}
