@@ -44,7 +44,7 @@ func TrialPixels(ctx context.Context, dst []float64, bank *spectral.Bank, e *dat
 	}
 	h := bank.MaxHalf(freqs)
 	lo, hi := spectral.Crop(e.NSamples, from, to, h)
-	conv := bank.NewConvolver(spectral.TightFFTLen(hi-lo, from-lo, to-lo, h))
+	conv := bank.NewConvolver(spectral.TightFFTLenStep(hi-lo, from-lo, to-lo, h, step))
 	conv.Tight = true
 	buf := make([][]float64, rows)
 	for r := range buf {

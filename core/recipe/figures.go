@@ -159,12 +159,12 @@ func (p *Plan) figAllFreqs() []int {
 //	P[r][c] = (1/N) Σ_t |x_t∗w_freqs[r]|²[c·step],  step = figPowerStep(samples),
 //
 // over the whole epoch, in the square of the channel's unit. Each trial is
-// transformed once (a Tight convolver of spectral.TightFFTLen) and every
+// transformed once (a Tight convolver of spectral.TightFFTLenStep, so the decimated read folds the spectrum) and every
 // frequency reads that spectrum.
 func figPowerMap(ctx context.Context, bank *spectral.Bank, e *data.Epochs, ch int, freqs []int) ([][]float64, error) {
 	n := e.NSamples
 	step := figPowerStep(n)
-	conv := bank.NewConvolver(spectral.TightFFTLen(n, 0, n, bank.MaxHalf(freqs)))
+	conv := bank.NewConvolver(spectral.TightFFTLenStep(n, 0, n, bank.MaxHalf(freqs), step))
 	conv.Tight = true
 	var pow [][]float64
 	for t := range e.NTrials {

@@ -50,6 +50,11 @@ type Convolver struct {
 	out  []complex128   // IFFT of x·W for wavelet cur, unnormalised, nfft
 	spec [][]complex128 // per-wavelet view of bank.Spectrum(i, nfft)
 
+	// Folded decimation for TFPower (see tfPowerFolded).
+	roots []complex128      // exp(i2πk/nfft), built on first use
+	fold  []complex128      // folded spectrum, nfft/step
+	mfft  *fourier.CmplxFFT // inverse FFT of length nfft/step
+
 	n      int // length of the loaded signal, −1 before Load
 	cur    int // wavelet whose result is in out, −1 if none
 	scale  float64
@@ -86,6 +91,7 @@ func (c *Convolver) Reset(nfft int) {
 	c.n, c.cur = -1, -1
 	c.scale = 1 / float64(nfft)
 	c.scale2 = 1 / (float64(nfft) * float64(nfft))
+	c.roots = c.roots[:0]
 }
 
 func resize[T any](s []T, n int) []T {
@@ -149,6 +155,17 @@ func (c *Convolver) forward(n int) {
 // GoodSize(max(n, 2·half+1, n+half−from, to+half)).
 func TightFFTLen(n, from, to, half int) int {
 	return GoodSize(max(n, 2*half+1, n+half-from, to+half))
+}
+
+// TightFFTLenStep is TightFFTLen rounded up to a multiple of step whose
+// quotient has only the prime factors 2, 3 and 5, so that TFPower can read
+// every step-th sample by folding the spectrum (see Convolver.TFPower).
+func TightFFTLenStep(n, from, to, half, step int) int {
+	m := max(n, 2*half+1, n+half-from, to+half)
+	if step <= 1 {
+		return GoodSize(m)
+	}
+	return step * GoodSize((m+step-1)/step)
 }
 
 // check panics if output samples [from, to) of wavelet i (half-length h) are
@@ -267,11 +284,17 @@ func TFPower(dst [][]float64, c *Convolver, idx []int, from, to, step int) [][]f
 	if len(dst) != len(idx) {
 		panic(fmt.Sprintf("spectral: power map has %d rows for %d frequencies", len(dst), len(idx)))
 	}
-	for r, i := range idx {
-		row := dst[r]
+	for r, row := range dst {
 		if len(row) != cols {
 			panic(fmt.Sprintf("spectral: power map row %d has %d columns, want %d", r, len(row), cols))
 		}
+	}
+	if step > 1 && cols > 0 && c.nfft%step == 0 {
+		c.tfPowerFolded(dst, idx, from, to, step)
+		return dst
+	}
+	for r, i := range idx {
+		row := dst[r]
 		h := c.compute(i, from, to)
 		for col := range row {
 			v := c.out[from+col*step+h]
@@ -279,4 +302,65 @@ func TFPower(dst [][]float64, c *Convolver, idx []int, from, to, step int) [][]f
 		}
 	}
 	return dst
+}
+
+// tfPowerFolded is TFPower for a step that divides the FFT length N. Every
+// step-th output sample y[off + c·step], c = 0 … M−1 with M = N/step, is
+//
+//	y[off + c·step] = (1/N)·Σ_{k'<M} (Σ_j Z[k' + j·M])·exp(i2πk'c/M),
+//	Z[k] = X[k]·W[k]·exp(i2πk·off/N),
+//
+// so folding the shifted product spectrum into M bins and one inverse FFT of
+// length M gives them all, in place of an inverse FFT of length N. The
+// values equal the unfolded ones to rounding.
+func (c *Convolver) tfPowerFolded(dst [][]float64, idx []int, from, to, step int) {
+	nf := c.nfft
+	m := nf / step
+	if len(c.roots) != nf {
+		c.roots = resize(c.roots, nf)
+		for k := range c.roots {
+			s, co := math.Sincos(2 * math.Pi * float64(k) / float64(nf))
+			c.roots[k] = complex(co, s)
+		}
+	}
+	if len(c.fold) != m {
+		c.fold = make([]complex128, m)
+		c.mfft = fourier.NewCmplxFFT(m)
+	}
+	if c.n < 0 {
+		panic("spectral: Convolver used before Load")
+	}
+	for r, i := range idx {
+		if i < 0 || i >= len(c.spec) {
+			panic(fmt.Sprintf("spectral: wavelet index %d out of range [0,%d)", i, len(c.spec)))
+		}
+		h := c.bank.halves[i]
+		c.check(h, from, to)
+		w := c.spec[i]
+		if w == nil {
+			w = c.bank.Spectrum(i, nf)
+			c.spec[i] = w
+		}
+		off := from + h
+		fold := c.fold
+		clear(fold)
+		p := 0
+		for j := 0; j < step; j++ {
+			base := j * m
+			xs, ws := c.x[base:base+m], w[base:base+m]
+			for k := range fold {
+				fold[k] += xs[k] * ws[k] * c.roots[p]
+				p += off
+				if p >= nf {
+					p -= nf
+				}
+			}
+		}
+		c.mfft.Sequence(fold, fold)
+		row := dst[r]
+		for col := range row {
+			v := fold[col]
+			row[col] += (real(v)*real(v) + imag(v)*imag(v)) * c.scale2
+		}
+	}
 }
