@@ -1,0 +1,775 @@
+package app
+
+import (
+	"encoding/json"
+	"fmt"
+	"math"
+	"sort"
+	"strconv"
+	"strings"
+	"time"
+
+	goapp "github.com/maxence-charriere/go-app/v9/pkg/app"
+
+	"amplink/core/recipe"
+	"amplink/wasm/wire"
+)
+
+// run modes
+const (
+	modeMain     = "main"
+	modeIdentity = "identity"
+)
+
+// Page is the whole amplink page.
+type Page struct {
+	goapp.Compo
+
+	ctx  goapp.Context
+	pool *pool
+
+	// the recording
+	data    *fileRef
+	events  *fileRef
+	extras  []fileRef
+	demo    bool
+	summary *recipe.Summary
+	loadMsg string
+	loadErr string
+	loading bool
+
+	// the recipe
+	form     *Form
+	fieldKey string // input the current error belongs to
+	fieldErr string
+	formErr  string
+	restored string
+	expanded int // the analysis open for editing
+
+	// running
+	seq       int
+	mode      string
+	running   bool
+	done      []int
+	total     int
+	unitBufs  []buffer
+	unitsIn   int
+	started   float64
+	status    string
+	runErr    string
+	stateAttr string
+
+	// results
+	table    Table
+	sortCol  int
+	sortDesc bool
+	figures  []wire.Figure
+	warnings []string
+	urls     map[string]string // download name → blob URL
+	identity string
+
+	// check plot
+	powerSeq   int
+	powerChan  string
+	powerSVG   string
+	powerErr   string
+	powerBusy  bool
+	dragTarget string // "analyses.i.seed" or "analyses.i.target"
+	dragMsg    string
+
+	// sharing, updates
+	shareURL  string
+	updateNow bool
+
+	// progressive drawing: how many steps of the page, result rows and
+	// figures are drawn so far (each addition is its own short task)
+	stage      int
+	shownRows  int
+	shownFigs  int
+	resultsRev int
+	figBufs    []buffer // the figures' SVG, made into Blobs as they are shown
+}
+
+// Progressive drawing. The page is drawn a step at a time after start-up,
+// and long result tables and figures a slice at a time, so that no single
+// main-thread task grows long (the page must answer within 200 ms).
+const (
+	stages      = 5
+	rowsPerTick = 5
+	revealDelay = 4 * time.Millisecond
+)
+
+// later runs fn on the page after the browser has had its turn: from a
+// fresh JS timer task, not a Go timer (a Go timer that is already due when
+// a long render ends runs at once, in the same task).
+func (p *Page) later(fn func(goapp.Context)) {
+	afterTask(revealDelay, func() { p.ctx.Dispatch(fn) })
+}
+
+func (p *Page) advance(ctx goapp.Context) {
+	if p.stage < stages {
+		p.stage++
+		p.later(p.advance)
+		return
+	}
+	p.stateAttr = "ready"
+	markTime("amplink-ready")
+	p.restoreLink()
+}
+
+// reveal draws more of the results, then schedules itself until all are
+// shown; only then is the run reported done.
+func (p *Page) reveal(ctx goapp.Context) {
+	switch {
+	case p.shownRows < len(p.table.Rows):
+		p.shownRows = min(len(p.table.Rows), p.shownRows+rowsPerTick)
+	case p.shownFigs < len(p.figures):
+		if p.shownFigs < len(p.figBufs) {
+			p.urls[p.figures[p.shownFigs].Name+".svg"] = bufferURL(p.figBufs[p.shownFigs], "image/svg+xml")
+		}
+		p.shownFigs++
+	default:
+		p.stateAttr = "done"
+		return
+	}
+	p.later(p.reveal)
+}
+
+// OnInit sets the starting state (on the server too, for pre-rendering).
+func (p *Page) OnInit() {
+	p.form = NewForm()
+	p.sortCol = -1
+	p.stage = stages // the server draws the whole page at once
+	if goapp.IsClient {
+		p.stage = 1 // the browser, a step at a time (see advance)
+	}
+	p.stateAttr = "loading"
+	p.urls = map[string]string{}
+}
+
+// OnMount starts the workers and restores a shared recipe from the link.
+func (p *Page) OnMount(ctx goapp.Context) {
+	p.ctx = ctx
+	if !goapp.IsClient {
+		return
+	}
+	p.pool = newPool(workerCount(), p.onReply)
+	p.later(p.advance)
+}
+
+// restoreLink fills the form from a shared link in the URL fragment.
+func (p *Page) restoreLink() {
+	if frag := fragment(); strings.HasPrefix(strings.TrimPrefix(frag, "#"), FragmentKey) {
+		b, err := DecodeFragment(frag)
+		if err == nil {
+			var f *Form
+			if f, err = FormFromJSON(b); err == nil {
+				p.form = f
+				p.restored = "Settings restored from the link."
+				p.validate()
+			}
+		}
+		if err != nil {
+			p.formErr = err.Error()
+		}
+	}
+}
+
+// OnAppUpdate tells the user a new version is ready.
+func (p *Page) OnAppUpdate(ctx goapp.Context) {
+	p.updateNow = true
+}
+
+// onReply runs on the page's event loop for every worker message.
+func (p *Page) onReply(k int, rep wire.Reply, bufs []buffer) {
+	p.ctx.Dispatch(func(ctx goapp.Context) { p.handleReply(k, rep, bufs) })
+}
+
+func (p *Page) handleReply(k int, rep wire.Reply, bufs []buffer) {
+	switch rep.Op {
+	case wire.OpFatal:
+		p.runErr = rep.Error
+		p.running, p.loading, p.powerBusy = false, false, false
+		p.stateAttr = "error"
+		return
+	}
+	if rep.Seq < 0 {
+		if rep.Seq != p.powerSeq {
+			return
+		}
+		p.powerBusy = false
+		switch {
+		case rep.Op == wire.OpError:
+			p.powerErr = rep.Error
+		case rep.Figure != nil:
+			p.powerSVG, p.powerErr = rep.Figure.SVG, ""
+			p.ctx.Defer(func(goapp.Context) { attachDrag(p.onDragged) })
+		}
+		return
+	}
+	if rep.Seq != p.seq {
+		return // a reply to something since cancelled or replaced
+	}
+	switch rep.Op {
+	case wire.OpError:
+		p.fail(rep.Error)
+	case wire.OpSummary:
+		p.loading = false
+		var s recipe.Summary
+		if err := json.Unmarshal(rep.Summary, &s); err != nil {
+			p.loadErr = err.Error()
+			return
+		}
+		p.summary = &s
+		p.loadErr = ""
+		if len(s.Channels) > 0 && p.powerChan == "" {
+			p.powerChan = s.Channels[0]
+		}
+		// the form follows in its own task: drawing a long recipe and the
+		// summary together would make one long one
+		demoRecipe := rep.Recipe
+		seq := p.seq
+		p.later(func(ctx goapp.Context) {
+			if seq != p.seq {
+				return
+			}
+			if len(demoRecipe) > 0 {
+				if f, err := FormFromJSON(demoRecipe); err == nil {
+					p.form = f
+					p.expanded = 0
+				}
+			}
+			p.suggestEpochs()
+			p.validate()
+			p.stateAttr = "loaded"
+		})
+	case wire.OpProgress:
+		if k < len(p.done) {
+			p.done[k] = rep.Done
+		}
+		p.total = rep.Total
+	case wire.OpUnits:
+		markTime("amplink-units")
+		if k < len(p.unitBufs) && len(bufs) == 1 {
+			p.unitBufs[k] = bufs[0]
+			p.unitsIn++
+		}
+		p.total = rep.Total
+		if p.unitsIn == len(p.unitBufs) {
+			names := make([]string, len(p.unitBufs))
+			for i := range names {
+				names[i] = fmt.Sprintf("units-%d", i)
+			}
+			p.pool.send(0, wire.Request{Op: wire.OpFinish, Seq: p.seq}, names, p.unitBufs)
+			p.status = "Combining results…"
+		}
+	case wire.OpResults:
+		markTime("amplink-results")
+		p.finishRun(rep, bufs)
+		markTime("amplink-results-end")
+	}
+}
+
+func (p *Page) fail(msg string) {
+	p.running, p.loading = false, false
+	p.stateAttr = "error"
+	if k := p.form.KeyFor(msg); k != "" {
+		p.fieldKey, p.fieldErr = k, msg
+		p.runErr = "The recipe does not fit this recording: see the marked field."
+		return
+	}
+	if p.summary == nil && !p.demo {
+		p.loadErr = msg
+		return
+	}
+	p.runErr = msg
+}
+
+func (p *Page) finishRun(rep wire.Reply, bufs []buffer) {
+	p.running = false
+	elapsed := nowMillis() - p.started
+	t, err := ParseTable(rep.CSV)
+	if err != nil {
+		p.fail(err.Error())
+		return
+	}
+	if p.mode == modeIdentity {
+		p.identity = identityText(t)
+		p.status = fmt.Sprintf("Identity check done in %.1f s.", elapsed/1000)
+		p.stateAttr = "identity-done"
+		return
+	}
+	p.table = t
+	p.sortCol, p.sortDesc = -1, false
+	p.figures = rep.Figures
+	p.warnings = rep.Warnings
+	p.status = fmt.Sprintf("Done: %d results in %.1f s.", len(t.Rows), elapsed/1000)
+	p.shownRows, p.shownFigs = 0, 0
+	p.resultsRev++
+	p.stateAttr = "drawing"
+	// the downloads, then the rows and figures, each in later short tasks
+	csv, recipeJSON := rep.CSV, string(p.form.JSON())
+	p.later(func(ctx goapp.Context) {
+		for _, u := range p.urls {
+			revokeURL(u)
+		}
+		p.urls = map[string]string{
+			"results.csv": blobURL(csv, "text/csv"),
+			"recipe.json": blobURL(recipeJSON, "application/json"),
+		}
+		p.figBufs = nil
+		if len(bufs) == 1+len(rep.Figures) {
+			p.urls["results.json"] = bufferURL(bufs[0], "application/json")
+			p.figBufs = bufs[1:]
+		}
+		p.resultsRev++
+		p.later(p.reveal)
+	})
+}
+
+// identityText summarises the identity check: every r should be 1.
+func identityText(t Table) string {
+	rc := t.Col("r")
+	if rc < 0 || len(t.Rows) == 0 {
+		return "The check gave no results."
+	}
+	worst := 0.0
+	var rs []string
+	for _, row := range t.Rows {
+		v, err := strconv.ParseFloat(row[rc], 64)
+		if err != nil {
+			return "The check gave an undefined r: " + row[rc]
+		}
+		worst = math.Max(worst, math.Abs(v-1))
+		if len(rs) < 4 {
+			rs = append(rs, row[rc])
+		}
+	}
+	verdict := "passed"
+	if worst > 1e-9 {
+		verdict = "FAILED"
+	}
+	return fmt.Sprintf("Seed window = target window gives r = %s (%d tests; largest |r − 1| = %.1e): %s.", strings.Join(rs, ", "), len(t.Rows), worst, verdict)
+}
+
+// suggestEpochs fills the epoch event for continuous data when empty.
+func (p *Page) suggestEpochs() {
+	s := p.summary
+	if s == nil || s.Trials > 0 || len(s.Events) == 0 || p.form.get("epochs.event") != "" {
+		return
+	}
+	p.form.set("epochs.enabled", "on")
+	p.form.set("epochs.event", s.Events[0].Type)
+	if p.form.get("epochs.start") == "" {
+		p.form.set("epochs.start", "-1")
+		p.form.set("epochs.end", "1.5")
+	}
+}
+
+// validate parses the form and records the message for the field it names.
+func (p *Page) validate() bool {
+	_, key, err := p.form.Validate()
+	p.fieldKey, p.fieldErr, p.formErr = "", "", ""
+	if err == nil {
+		return true
+	}
+	if key != "" {
+		p.fieldKey, p.fieldErr = key, err.Error()
+	} else {
+		p.formErr = err.Error()
+	}
+	return false
+}
+
+// sources lists the files a worker needs, data first.
+func (p *Page) sources() (wire.Source, []fileRef) {
+	if p.demo {
+		return wire.Source{Demo: true}, nil
+	}
+	if p.data == nil {
+		return wire.Source{}, nil
+	}
+	src := wire.Source{Name: p.data.Name}
+	files := []fileRef{*p.data}
+	if p.events != nil {
+		src.EventsName = p.events.Name
+		files = append(files, *p.events)
+	}
+	files = append(files, p.extras...)
+	return src, files
+}
+
+// post reads the files afresh for one worker and sends req with them.
+func (p *Page) post(k int, req wire.Request, files []fileRef) {
+	names := make([]string, len(files))
+	for i, f := range files {
+		names[i] = f.Name
+	}
+	if len(files) == 0 {
+		p.pool.send(k, req, nil, nil)
+		return
+	}
+	p.ctx.Async(func() {
+		bufs, err := readBuffers(files)
+		p.ctx.Dispatch(func(ctx goapp.Context) {
+			if req.Seq != p.seq && req.Seq != p.powerSeq {
+				return
+			}
+			if err != nil {
+				p.fail(err.Error())
+				return
+			}
+			p.pool.send(k, req, names, bufs)
+		})
+	})
+}
+
+// ---- loading ----
+
+func (p *Page) onLoadDemo(ctx goapp.Context, e goapp.Event) {
+	p.resetRecording()
+	p.demo = true
+	p.loading = true
+	p.stateAttr = "reading"
+	p.loadMsg = "Building the demo recording…"
+	p.seq++
+	p.pool.send(0, wire.Request{Op: wire.OpDemo, Seq: p.seq, Source: wire.Source{Demo: true}}, nil, nil)
+}
+
+func (p *Page) resetRecording() {
+	if p.running {
+		p.cancel()
+	}
+	p.data, p.events, p.extras, p.demo = nil, nil, nil, false
+	p.summary, p.loadErr, p.loadMsg = nil, "", ""
+	p.powerSVG, p.powerErr, p.powerChan = "", "", ""
+	p.table = Table{}
+	p.figures, p.identity = nil, ""
+	p.resultsRev++
+}
+
+func (p *Page) onFiles(ctx goapp.Context, e goapp.Event) {
+	p.takeFiles(filesOf(ctx.JSSrc().Get("files")))
+}
+
+func (p *Page) onDragOver(ctx goapp.Context, e goapp.Event) {
+	e.PreventDefault()
+}
+
+func (p *Page) onDrop(ctx goapp.Context, e goapp.Event) {
+	e.PreventDefault()
+	p.takeFiles(filesOf(e.Get("dataTransfer").Get("files")))
+}
+
+// takeFiles sorts what the user gave: a recipe (.json with analyses), an
+// events table, sidecars (channels.tsv, .json), and the recording.
+func (p *Page) takeFiles(fs []fileRef) {
+	if len(fs) == 0 {
+		return
+	}
+	var data, events *fileRef
+	var extras, jsons []fileRef
+	var total int64
+	for i := range fs {
+		f := fs[i]
+		total += f.Size
+		low := strings.ToLower(f.Name)
+		switch {
+		case strings.HasSuffix(low, "events.tsv"):
+			events = &f
+		case strings.HasSuffix(low, ".json"):
+			jsons = append(jsons, f)
+		case strings.HasSuffix(low, "channels.tsv"):
+			extras = append(extras, f)
+		default:
+			data = &f
+		}
+	}
+	if total > wire.MaxBytes {
+		p.loadErr = fmt.Sprintf("These files hold %d MiB; the page can hold at most %d MiB per analysis worker. Use the command-line tool for larger recordings.", total>>20, wire.MaxBytes>>20)
+		return
+	}
+	p.ctx.Async(func() {
+		var recipeJSON []byte
+		var readErr error
+		var sidecars []fileRef
+		for _, j := range jsons {
+			if j.Size > 1<<20 {
+				sidecars = append(sidecars, j)
+				continue
+			}
+			text, err := readText(j)
+			if err != nil {
+				readErr = err
+				continue
+			}
+			if strings.Contains(text, `"analyses"`) {
+				recipeJSON = []byte(text)
+			} else {
+				sidecars = append(sidecars, j)
+			}
+		}
+		p.ctx.Dispatch(func(ctx goapp.Context) {
+			if readErr != nil {
+				p.loadErr = readErr.Error()
+			}
+			if recipeJSON != nil {
+				f, err := FormFromJSON(recipeJSON)
+				if err != nil {
+					p.formErr = "Recipe file: " + err.Error()
+				} else {
+					p.form = f
+					p.restored = "Settings taken from the dropped recipe."
+					p.validate()
+				}
+			}
+			if data != nil {
+				p.resetRecording()
+				p.data, p.events = data, events
+				p.extras = append(extras, sidecars...)
+				p.describe()
+			} else if events != nil && p.data != nil {
+				p.events = events
+				p.describe()
+			}
+			if recipeJSON != nil && (p.data != nil || p.demo) && data == nil {
+				p.startRun(modeMain, p.form.JSON())
+			}
+		})
+	})
+}
+
+func (p *Page) describe() {
+	src, files := p.sources()
+	p.loading = true
+	p.stateAttr = "reading"
+	p.loadMsg = "Reading " + src.Name + "…"
+	p.seq++
+	p.post(0, wire.Request{Op: wire.OpDescribe, Seq: p.seq, Source: src}, files)
+}
+
+// ---- check plot ----
+
+func (p *Page) onPowerChannel(ctx goapp.Context, e goapp.Event) {
+	p.powerChan = ctx.JSSrc().Get("value").String()
+}
+
+func (p *Page) onShowPower(ctx goapp.Context, e goapp.Event) {
+	if p.summary == nil {
+		return
+	}
+	src, files := p.sources()
+	p.powerSeq-- // negative: apart from the run sequence numbers
+	p.powerBusy, p.powerErr = true, ""
+	p.post(0, wire.Request{Op: wire.OpPower, Seq: p.powerSeq, Source: src, Recipe: p.form.JSON(), Channel: p.powerChan}, files)
+}
+
+func (p *Page) onDragTarget(ctx goapp.Context, e goapp.Event) {
+	p.dragTarget = ctx.JSSrc().Get("value").String()
+}
+
+// onDragged takes a finished drag over the power map (client
+// coordinates); the pointer events themselves are handled outside go-app
+// (see attachDrag), so dragging costs no page updates.
+func (p *Page) onDragged(x0, y0, x1, y1 float64) {
+	p.ctx.Dispatch(func(ctx goapp.Context) {
+		g, box, ok := plotGeometry()
+		if !ok {
+			p.dragMsg = "The figure has no plot-area geometry to map the selection through."
+			return
+		}
+		t0, f0 := g.toData(x0, y0, box)
+		t1, f1 := g.toData(x1, y1, box)
+		p.applyWindow(math.Min(t0, t1), math.Max(t0, t1), math.Min(f0, f1), math.Max(f0, f1))
+	})
+}
+
+// applyWindow sets the chosen seed or target window from a selection.
+func (p *Page) applyWindow(t0, t1, f0, f1 float64) {
+	target := p.dragTarget
+	if target == "" {
+		target = "analyses.0.seed"
+	}
+	round := func(v float64, digits int) string { return strconv.FormatFloat(v, 'f', digits, 64) }
+	p.form.set(target+".time.0", round(t0, 3))
+	p.form.set(target+".time.1", round(t1, 3))
+	p.form.set(target+".freq.0", round(f0, 1))
+	p.form.set(target+".freq.1", round(f1, 1))
+	if p.form.get(target+".channel") == "" && p.powerChan != "" {
+		p.form.set(target+".channel", p.powerChan)
+	}
+	var n int
+	var which string
+	fmt.Sscanf(strings.ReplaceAll(target, ".", " "), "analyses %d %s", &n, &which)
+	p.dragMsg = fmt.Sprintf("Set the %s window of analysis %d to %s–%s s, %s–%s Hz.", which, n+1, round(t0, 3), round(t1, 3), round(f0, 1), round(f1, 1))
+	p.validate()
+}
+
+// ---- the form ----
+
+func (p *Page) onField(key string) goapp.EventHandler {
+	return func(ctx goapp.Context, e goapp.Event) {
+		v := ctx.JSSrc().Get("value").String()
+		if ctx.JSSrc().Get("type").String() == "checkbox" {
+			v = ""
+			if ctx.JSSrc().Get("checked").Bool() {
+				v = "on"
+			}
+		}
+		p.form.set(key, v)
+		p.validate()
+	}
+}
+
+func (p *Page) onAddAnalysis(t string) goapp.EventHandler {
+	return func(ctx goapp.Context, e goapp.Event) {
+		p.form.AddAnalysis(t)
+		p.expanded = p.form.Analyses - 1
+		p.validate()
+	}
+}
+
+func (p *Page) onRemoveAnalysis(i int) goapp.EventHandler {
+	return func(ctx goapp.Context, e goapp.Event) {
+		p.form.RemoveAnalysis(i)
+		p.expanded = 0
+		p.validate()
+	}
+}
+
+func (p *Page) onCopyLink(ctx goapp.Context, e goapp.Event) {
+	p.shareURL = setFragment(EncodeFragment(p.form.JSON()))
+	copyText(p.shareURL)
+}
+
+// ---- running ----
+
+func (p *Page) onRun(ctx goapp.Context, e goapp.Event) {
+	if !p.validate() {
+		p.runErr = "Fix the marked field first."
+		return
+	}
+	p.startRun(modeMain, p.form.JSON())
+}
+
+// onIdentity runs the first window analysis with its target set to its
+// seed: the correlation of a quantity with itself must be exactly 1.
+func (p *Page) onIdentity(ctx goapp.Context, e goapp.Event) {
+	f := p.form.Clone()
+	idx := -1
+	for i := 0; i < f.Analyses; i++ {
+		if f.get(fmt.Sprintf("analyses.%d.type", i)) == recipe.TypeTrialWindow {
+			idx = i
+			break
+		}
+	}
+	if idx < 0 {
+		p.identity = "The identity check needs a trial-window analysis in the recipe."
+		return
+	}
+	g := &Form{Values: map[string]string{}, Analyses: 1}
+	for k, v := range f.Values {
+		if !strings.HasPrefix(k, "analyses.") {
+			g.Values[k] = v
+		}
+	}
+	src := fmt.Sprintf("analyses.%d.", idx)
+	for _, k := range []string{"type", "method", "seed.channel", "seed.time.0", "seed.time.1", "seed.freq.0", "seed.freq.1"} {
+		g.set("analyses.0."+k, f.get(src+k))
+	}
+	g.set("analyses.0.id", "identity")
+	for _, k := range []string{"channel", "time.0", "time.1", "freq.0", "freq.1"} {
+		g.set("analyses.0.target."+k, f.get(src+"seed."+k))
+	}
+	if _, _, err := g.Validate(); err != nil {
+		p.identity = "The identity check could not be set up: " + err.Error()
+		return
+	}
+	p.identity = "Running…"
+	p.startRun(modeIdentity, g.JSON())
+}
+
+func (p *Page) startRun(mode string, recipeJSON []byte) {
+	src, files := p.sources()
+	if !src.Demo && src.Name == "" {
+		p.runErr = "Open a recording or load the demo first."
+		return
+	}
+	if p.running {
+		p.cancel()
+	}
+	p.seq++
+	p.mode = mode
+	p.running = true
+	p.runErr, p.status = "", "Starting…"
+	n := p.pool.size()
+	p.done = make([]int, n)
+	p.unitBufs = make([]buffer, n)
+	p.unitsIn = 0
+	p.total = 0
+	p.started = nowMillis()
+	p.stateAttr = "running"
+	for k := 0; k < n; k++ {
+		p.post(k, wire.Request{Op: wire.OpRun, Seq: p.seq, Source: src, Recipe: recipeJSON, Worker: k, Workers: n}, files)
+	}
+}
+
+func (p *Page) onCancel(ctx goapp.Context, e goapp.Event) {
+	p.cancel()
+}
+
+func (p *Page) cancel() {
+	if !p.running {
+		return
+	}
+	p.pool.restart()
+	p.seq++
+	p.running, p.powerBusy = false, false
+	p.status = "Analysis cancelled."
+	p.stateAttr = "cancelled"
+	if p.mode == modeIdentity {
+		p.identity = "Cancelled."
+	}
+}
+
+func (p *Page) doneUnits() int {
+	s := 0
+	for _, d := range p.done {
+		s += d
+	}
+	return s
+}
+
+// ---- results ----
+
+func (p *Page) onSort(col int) goapp.EventHandler {
+	return func(ctx goapp.Context, e goapp.Event) {
+		if p.sortCol == col {
+			p.sortDesc = !p.sortDesc
+		} else {
+			p.sortCol, p.sortDesc = col, false
+		}
+	}
+}
+
+func (p *Page) onReload(ctx goapp.Context, e goapp.Event) {
+	ctx.Reload()
+}
+
+// sortedDownloads lists the download names in a fixed order.
+func (p *Page) sortedDownloads() []string {
+	var names []string
+	for n := range p.urls {
+		if n != "results.csv" && n != "results.json" && n != "recipe.json" {
+			names = append(names, n)
+		}
+	}
+	sort.Strings(names)
+	var out []string
+	for _, n := range []string{"results.csv", "results.json", "recipe.json"} {
+		if p.urls[n] != "" {
+			out = append(out, n)
+		}
+	}
+	return append(out, names...)
+}

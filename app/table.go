@@ -1,0 +1,77 @@
+package app
+
+import (
+	"encoding/csv"
+	"fmt"
+	"math"
+	"sort"
+	"strconv"
+	"strings"
+)
+
+// Table is the results table as results.csv has it: the header row and the
+// data rows, as text.
+type Table struct {
+	Header []string
+	Rows   [][]string
+}
+
+// ParseTable reads results.csv text.
+func ParseTable(csvText string) (Table, error) {
+	r := csv.NewReader(strings.NewReader(csvText))
+	recs, err := r.ReadAll()
+	if err != nil {
+		return Table{}, fmt.Errorf("results.csv: %w", err)
+	}
+	if len(recs) == 0 {
+		return Table{}, fmt.Errorf("results.csv: no header row")
+	}
+	return Table{Header: recs[0], Rows: recs[1:]}, nil
+}
+
+// Col returns the index of the named column, or −1.
+func (t Table) Col(name string) int {
+	for i, h := range t.Header {
+		if h == name {
+			return i
+		}
+	}
+	return -1
+}
+
+// Sorted returns the rows ordered by column col: numerically when both
+// cells are numbers (empty cells, which mean undefined, go last), otherwise
+// as text; ties keep the original order. desc reverses the order of
+// non-empty cells.
+func (t Table) Sorted(col int, desc bool) [][]string {
+	out := make([][]string, len(t.Rows))
+	copy(out, t.Rows)
+	if col < 0 || col >= len(t.Header) {
+		return out
+	}
+	cell := func(r []string) string {
+		if col < len(r) {
+			return r[col]
+		}
+		return ""
+	}
+	sort.SliceStable(out, func(i, j int) bool {
+		a, b := cell(out[i]), cell(out[j])
+		if a == "" || b == "" {
+			return a != "" && b == ""
+		}
+		fa, ea := strconv.ParseFloat(a, 64)
+		fb, eb := strconv.ParseFloat(b, 64)
+		if ea == nil && eb == nil && !math.IsNaN(fa) && !math.IsNaN(fb) {
+			if fa == fb {
+				return false
+			}
+			return (fa < fb) != desc
+		}
+		if a == b {
+			return false
+		}
+		return (a < b) != desc
+	})
+	return out
+}

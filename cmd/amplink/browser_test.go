@@ -1,0 +1,939 @@
+//go:build !wasm
+
+package main
+
+import (
+	"bufio"
+	"context"
+	"encoding/json"
+	"fmt"
+	"math"
+	"net"
+	"net/http"
+	"net/http/httptest"
+	"net/http/httputil"
+	"net/url"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"sort"
+	"strconv"
+	"strings"
+	"sync"
+	"testing"
+	"time"
+
+	"github.com/chromedp/cdproto/page"
+	"github.com/chromedp/cdproto/runtime"
+	"github.com/chromedp/chromedp"
+
+	"amplink/core/demo"
+	"amplink/core/recipe"
+	"amplink/core/report"
+	"amplink/wasm/job"
+	"amplink/wasm/wire"
+)
+
+// The browser tests drive Debian's Chromium like a user would, against the
+// site that `amplink site` writes, served under a path prefix by a plain
+// file server. Every request is recorded at the test server (the workers'
+// and the service worker's requests do not show in the page's network
+// events), and the browser is routed through a recording proxy on
+// 127.0.0.1 so that a request to any other origin is seen too.
+
+const chromiumPath = "/usr/bin/chromium"
+
+// prefix is where the site is served: it must work under any path.
+const prefix = "/some/prefix/"
+
+type request struct {
+	Method, Path, Phase string
+	At                  time.Time
+}
+
+// origin serves the site and records every request with the test phase it
+// came in.
+type origin struct {
+	mu      sync.Mutex
+	phase   string
+	offline bool
+	reqs    []request
+	site    http.Handler
+}
+
+func (o *origin) setPhase(p string) {
+	o.mu.Lock()
+	o.phase = p
+	o.mu.Unlock()
+	phaseLog = append(phaseLog, p+" from "+time.Now().Format("15:04:05.000"))
+}
+
+var phaseLog []string
+
+func (o *origin) setOffline(v bool) { o.mu.Lock(); o.offline = v; o.mu.Unlock() }
+
+func (o *origin) ServeHTTP(w http.ResponseWriter, r *http.Request) {
+	o.mu.Lock()
+	o.reqs = append(o.reqs, request{Method: r.Method, Path: r.URL.Path, Phase: o.phase, At: time.Now()})
+	offline := o.offline
+	o.mu.Unlock()
+	if offline {
+		http.Error(w, "offline", http.StatusServiceUnavailable)
+		return
+	}
+	if !strings.HasPrefix(r.URL.Path, prefix) {
+		http.NotFound(w, r)
+		return
+	}
+	http.StripPrefix(strings.TrimSuffix(prefix, "/"), o.site).ServeHTTP(w, r)
+}
+
+func (o *origin) requests(phase string) []request {
+	o.mu.Lock()
+	defer o.mu.Unlock()
+	var out []request
+	for _, r := range o.reqs {
+		if phase == "" || r.Phase == phase {
+			out = append(out, r)
+		}
+	}
+	return out
+}
+
+// proxy forwards requests for the test origin and refuses, and records,
+// everything else. Requests that carry Sec-Fetch-* headers come from a
+// page or worker; Chromium's own background calls (which it makes even
+// with --disable-background-networking) carry none, and go through CONNECT
+// to its vendor's hosts; those are logged, not failed.
+type proxy struct {
+	mu      sync.Mutex
+	target  *url.URL
+	fwd     *httputil.ReverseProxy
+	foreign []string // from the page or a worker
+	vendor  []string // from the browser itself
+}
+
+var vendorHosts = []string{".google.com", ".googleapis.com", ".gstatic.com", ".gvt1.com", ".gvt2.com", ".googleusercontent.com", ".chromium.org", ".doubleclick.net"}
+
+func isVendor(host string) bool {
+	h, _, err := net.SplitHostPort(host)
+	if err != nil {
+		h = host
+	}
+	for _, v := range vendorHosts {
+		if strings.HasSuffix("."+h, v) {
+			return true
+		}
+	}
+	return false
+}
+
+func (p *proxy) ServeHTTP(w http.ResponseWriter, r *http.Request) {
+	if r.Method != http.MethodConnect && r.URL.Host == p.target.Host {
+		p.fwd.ServeHTTP(w, r)
+		return
+	}
+	p.mu.Lock()
+	what := r.Method + " " + r.Host + r.URL.Path
+	fromPage := r.Header.Get("Sec-Fetch-Mode") != "" || r.Header.Get("Sec-Fetch-Site") != ""
+	if fromPage || !isVendor(r.Host) {
+		p.foreign = append(p.foreign, what)
+	} else {
+		p.vendor = append(p.vendor, what)
+	}
+	p.mu.Unlock()
+	http.Error(w, "amplink test proxy: no other origin", http.StatusForbidden)
+}
+
+// browser is one Chromium with one tab and what it reported.
+type browser struct {
+	ctx      context.Context
+	origin   *origin
+	proxy    *proxy
+	base     string // the site's URL
+	mu       sync.Mutex
+	problems []string  // console errors, exceptions
+	long     []float64 // after the page was ready
+	startup  []float64 // before: wasm instantiation and the Go runtime's start
+	longAt   []string
+	marks    []string
+}
+
+// mark notes the page clock at a step, to place long tasks.
+func (b *browser) mark(t *testing.T, what string) {
+	now, _ := chromedp.Run(b.ctx, chromedp.Evaluate[float64](`performance.now()`))
+	b.mu.Lock()
+	b.marks = append(b.marks, fmt.Sprintf("%s at %.0f ms", what, now))
+	b.mu.Unlock()
+}
+
+// longTaskJS runs before any page script: it keeps every main-thread long
+// task (the Long Tasks API reports tasks over 50 ms).
+const longTaskJS = `window.__amplinkLong = [];
+try {
+  new PerformanceObserver((list) => {
+    for (const e of list.getEntries()) window.__amplinkLong.push([e.duration, e.startTime]);
+  }).observe({type: "longtask", buffered: true});
+} catch (e) {}
+window.__amplinkCSP = [];
+document.addEventListener("securitypolicyviolation", (e) => {
+  window.__amplinkCSP.push(e.violatedDirective + " " + e.blockedURI);
+});`
+
+func newBrowser(t *testing.T) *browser {
+	t.Helper()
+	if _, err := os.Stat(chromiumPath); err != nil {
+		if os.Getenv("CI") == "true" {
+			t.Fatalf("CI: %s is needed for the browser tests: %v", chromiumPath, err)
+		}
+		t.Skipf("no %s: %v", chromiumPath, err)
+	}
+	dir, _ := testSite(t)
+	o := &origin{site: SiteHandler(dir), phase: "load"}
+	srv := httptest.NewServer(o)
+	t.Cleanup(srv.Close)
+	target, _ := url.Parse(srv.URL)
+	px := &proxy{target: target, fwd: httputil.NewSingleHostReverseProxy(target)}
+	psrv := httptest.NewServer(px)
+	t.Cleanup(psrv.Close)
+
+	opts := append(chromedp.DefaultExecAllocatorOptions[:],
+		chromedp.ExecPath(chromiumPath),
+		chromedp.Headless,
+		chromedp.NoSandbox,
+		chromedp.DisableGPU,
+		chromedp.NoFirstRun,
+		chromedp.Flag("disable-quic", true),
+		chromedp.Flag("disable-background-networking", true),
+		chromedp.Flag("disable-component-update", true),
+		chromedp.Flag("disable-sync", true),
+		chromedp.Flag("proxy-server", psrv.URL),
+		chromedp.Flag("proxy-bypass-list", "<-loopback>"),
+		chromedp.UserDataDir(t.TempDir()),
+		chromedp.WindowSize(1280, 900),
+	)
+	actx, cancelA := chromedp.NewExecAllocator(context.Background(), opts...)
+	t.Cleanup(cancelA)
+	b := &browser{origin: o, proxy: px, base: srv.URL + prefix}
+	ctx, cancel := chromedp.NewContext(actx, chromedp.WithListener(func(ev any) {
+		switch ev := ev.(type) {
+		case *runtime.EventConsoleAPICalled:
+			if ev.Type == runtime.ConsoleAPICalledTypeError || ev.Type == runtime.ConsoleAPICalledTypeAssert {
+				var parts []string
+				for _, a := range ev.Args {
+					if a.Value != nil {
+						parts = append(parts, string(a.Value))
+					} else {
+						parts = append(parts, a.Description)
+					}
+				}
+				b.mu.Lock()
+				b.problems = append(b.problems, "console."+string(ev.Type)+": "+strings.Join(parts, " "))
+				b.mu.Unlock()
+			}
+		case *runtime.EventExceptionThrown:
+			d := ev.ExceptionDetails
+			text := d.Text
+			if d.Exception != nil {
+				text += " " + d.Exception.Description
+			}
+			b.mu.Lock()
+			b.problems = append(b.problems, "exception: "+text)
+			b.mu.Unlock()
+		}
+	}))
+	t.Cleanup(cancel)
+	b.ctx = ctx
+	if err := chromedp.Do(ctx); err != nil {
+		t.Fatalf("starting %s: %v", chromiumPath, err)
+	}
+	if _, err := chromedp.Call(ctx, page.AddScriptToEvaluateOnNewDocument, page.AddScriptToEvaluateOnNewDocumentParams{Source: longTaskJS}); err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() { b.check(t) })
+	return b
+}
+
+// check fails the test on anything the page must never do.
+func (b *browser) check(t *testing.T) {
+	b.collectLong(t)
+	b.mu.Lock()
+	defer b.mu.Unlock()
+	for _, p := range b.problems {
+		t.Errorf("browser: %s", p)
+	}
+	for _, d := range b.long {
+		if d > 200 {
+			t.Errorf("a main-thread task took %.0f ms (limit 200 ms)", d)
+		}
+	}
+	if len(b.longAt) > 0 || testing.Verbose() {
+		t.Logf("long tasks over 200 ms: %v; page steps: %v", b.longAt, b.marks)
+	}
+	// Start-up (instantiating the page's wasm and starting the Go runtime,
+	// before the page's own code runs) is one task the page cannot split;
+	// it is reported, not failed. Everything after it must stay short.
+	if len(b.startup) > 0 {
+		sort.Float64s(b.startup)
+		t.Logf("start-up long tasks (before the page is ready): %v ms", b.startup)
+	}
+	if len(b.long) > 0 {
+		sort.Float64s(b.long)
+		t.Logf("main-thread long tasks (> 50 ms): %d, longest %.0f ms", len(b.long), b.long[len(b.long)-1])
+	}
+	for _, r := range b.origin.requests("") {
+		if r.Method != http.MethodGet {
+			t.Errorf("non-GET request %s %s", r.Method, r.Path)
+		}
+		// app-worker.js is the browser's own update check of the service
+		// worker, which it makes on its own schedule past the page; it
+		// carries nothing and the page does not ask for it
+		if r.Phase == "analysis" && r.Path != prefix+"app-worker.js" {
+			t.Errorf("request during an analysis: %s %s at %s", r.Method, r.Path, r.At.Format("15:04:05.000"))
+		}
+	}
+	b.proxy.mu.Lock()
+	defer b.proxy.mu.Unlock()
+	for _, f := range b.proxy.foreign {
+		t.Errorf("request to another origin: %s", f)
+	}
+	if len(b.proxy.vendor) > 0 {
+		t.Logf("Chromium's own background requests (refused, not the page's): %v", b.proxy.vendor)
+	}
+}
+
+// collectLong reads the long tasks of the current document.
+func (b *browser) collectLong(t *testing.T) {
+	var ds [][2]float64
+	s, err := chromedp.Run(b.ctx, chromedp.Evaluate[string](`JSON.stringify(window.__amplinkLong || [])`))
+	if err != nil {
+		return
+	}
+	json.Unmarshal([]byte(s), &ds)
+	var csp []string
+	if c, err := chromedp.Run(b.ctx, chromedp.Evaluate[string](`JSON.stringify(window.__amplinkCSP || [])`)); err == nil {
+		json.Unmarshal([]byte(c), &csp)
+	}
+	chromedp.Run(b.ctx, chromedp.Evaluate[chromedp.Void](`window.__amplinkCSP = []`))
+	if m, err := chromedp.Run(b.ctx, chromedp.Evaluate[string](`JSON.stringify(performance.getEntriesByType("mark").map(e => e.name + " " + Math.round(e.startTime)))`)); err == nil {
+		b.mu.Lock()
+		b.marks = append(b.marks, m)
+		b.mu.Unlock()
+	}
+	ready, _ := chromedp.Run(b.ctx, chromedp.Evaluate[float64](`(performance.getEntriesByName("amplink-ready")[0] || {startTime: 1e12}).startTime`))
+	b.mu.Lock()
+	for _, v := range csp {
+		b.problems = append(b.problems, "Content-Security-Policy violation: "+v)
+	}
+	for _, d := range ds {
+		if d[1] < ready {
+			b.startup = append(b.startup, d[0])
+			continue
+		}
+		b.long = append(b.long, d[0])
+		if d[0] > 200 {
+			b.longAt = append(b.longAt, fmt.Sprintf("%.0f ms at %.0f ms", d[0], d[1]))
+		}
+	}
+	b.mu.Unlock()
+	chromedp.Run(b.ctx, chromedp.Evaluate[chromedp.Void](`window.__amplinkLong = []`))
+}
+
+// open navigates to the site (plus a fragment) and waits until the page
+// has mounted; it returns the time from navigation to ready.
+func (b *browser) open(t *testing.T, fragment string) time.Duration {
+	t.Helper()
+	b.collectLong(t)
+	if err := chromedp.Do(b.ctx, chromedp.Navigate("about:blank")); err != nil {
+		t.Fatal(err)
+	}
+	start := time.Now()
+	if err := chromedp.Do(b.ctx, chromedp.Navigate(b.base+fragment)); err != nil {
+		t.Fatal(err)
+	}
+	b.waitState(t, "ready", 60*time.Second)
+	b.mark(t, "ready")
+	return time.Since(start)
+}
+
+func (b *browser) state(t *testing.T) string {
+	s, _ := chromedp.Run(b.ctx, chromedp.Evaluate[string](`(document.getElementById("status") || {dataset: {}}).dataset.state || ""`))
+	return s
+}
+
+// waitState polls #status[data-state] until it is want.
+func (b *browser) waitState(t *testing.T, want string, timeout time.Duration) {
+	t.Helper()
+	expr := fmt.Sprintf(`(() => { const e = document.getElementById("status"); return !!e && e.dataset.state === %q; })()`, want)
+	deadline := time.Now().Add(timeout)
+	for {
+		_, err := chromedp.Run(b.ctx, chromedp.Poll[bool](expr, chromedp.WithPollingTimeout(time.Until(deadline)), chromedp.WithPollingInterval(20*time.Millisecond)))
+		if err == nil {
+			return
+		}
+		// a navigation (a reload of the page) destroys the context the
+		// poll runs in; poll again in the new one
+		if strings.Contains(err.Error(), "Cannot find context") && time.Now().Before(deadline) {
+			continue
+		}
+		t.Fatalf("waiting for state %q (now %q, error %q): %v", want, b.state(t), b.text(t, "#run-error"), err)
+	}
+}
+
+func (b *browser) click(t *testing.T, id string) {
+	t.Helper()
+	if err := chromedp.Do(b.ctx, chromedp.Click(chromedp.ID(id))); err != nil {
+		t.Fatalf("click #%s: %v", id, err)
+	}
+}
+
+func (b *browser) text(t *testing.T, sel string) string {
+	s, _ := chromedp.Run(b.ctx, chromedp.Evaluate[string](fmt.Sprintf(`(document.querySelector(%q) || {textContent: ""}).textContent`, sel)))
+	return s
+}
+
+// setField types a value into a form input and commits it (change event).
+func (b *browser) setField(t *testing.T, id, value string) {
+	t.Helper()
+	js := fmt.Sprintf(`(() => { const e = document.getElementById(%q); if (!e) return false; e.value = %q; e.dispatchEvent(new Event("change", {bubbles: true})); return true; })()`, id, value)
+	ok, err := chromedp.Run(b.ctx, chromedp.Evaluate[bool](js))
+	if err != nil || !ok {
+		t.Fatalf("set #%s: %v", id, err)
+	}
+}
+
+// formValues reads every recipe input of the page.
+func (b *browser) formValues(t *testing.T) map[string]string {
+	t.Helper()
+	s, err := chromedp.Run(b.ctx, chromedp.Evaluate[string](`JSON.stringify(Object.fromEntries(
+		[...document.querySelectorAll("[id^='f-']")].map(e => [e.id, e.type === "checkbox" ? String(e.checked) : e.value])))`))
+	if err != nil {
+		t.Fatal(err)
+	}
+	m := map[string]string{}
+	json.Unmarshal([]byte(s), &m)
+	return m
+}
+
+type pageTable struct {
+	H []string   `json:"h"`
+	R [][]string `json:"r"`
+}
+
+func (b *browser) table(t *testing.T) pageTable {
+	t.Helper()
+	s, err := chromedp.Run(b.ctx, chromedp.Evaluate[string](`JSON.stringify({
+		h: [...document.querySelectorAll("#results thead th")].map(e => e.textContent),
+		r: [...document.querySelectorAll("#results tbody tr")].map(tr => [...tr.children].map(td => td.textContent))})`))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var pt pageTable
+	if err := json.Unmarshal([]byte(s), &pt); err != nil {
+		t.Fatal(err)
+	}
+	return pt
+}
+
+// runAnalysis clicks Run and waits for the results; no request may reach
+// the server meanwhile.
+func (b *browser) runAnalysis(t *testing.T, timeout time.Duration) time.Duration {
+	t.Helper()
+	b.origin.setPhase("analysis")
+	start := time.Now()
+	b.mark(t, "run")
+	b.click(t, "run-analysis")
+	b.waitState(t, "running", 10*time.Second)
+	b.waitState(t, "done", timeout)
+	b.mark(t, "done")
+	d := time.Since(start)
+	b.origin.setPhase("idle")
+	return d
+}
+
+// requiredColumns are the results columns DESIGN.md fixes.
+var requiredColumns = []string{"analysis", "type", "seed", "target", "method", "n", "r", "p"}
+
+func checkHeader(t *testing.T, h []string) {
+	t.Helper()
+	if len(h) < len(requiredColumns) {
+		t.Fatalf("header %v: want it to start with %v", h, requiredColumns)
+	}
+	for i, c := range requiredColumns {
+		if h[i] != c {
+			t.Fatalf("header %v: column %d is %q, want %q", h, i, h[i], c)
+		}
+	}
+}
+
+// compareNative checks the page's rows against recipe.Run on the same data
+// (the native core): same rows, r equal to 1e-9.
+func compareNative(t *testing.T, pt pageTable, res *report.Results) {
+	t.Helper()
+	if len(pt.R) != len(res.Rows) {
+		t.Fatalf("page has %d rows, native run %d", len(pt.R), len(res.Rows))
+	}
+	rc := -1
+	for i, h := range pt.H {
+		if h == "r" {
+			rc = i
+		}
+	}
+	for i, row := range pt.R {
+		want := res.Rows[i]
+		k := fmt.Sprintf("row %d (%s, %s → %s)", i+1, want.Analysis, want.Seed, want.Target)
+		if row[0] != want.Analysis || row[2] != want.Seed || row[3] != want.Target {
+			t.Errorf("%s: page has %v", k, row[:4])
+			continue
+		}
+		if row[rc] == "" {
+			if !math.IsNaN(want.R) {
+				t.Errorf("%s: page r empty, native %g", k, want.R)
+			}
+			continue
+		}
+		got, err := strconv.ParseFloat(row[rc], 64)
+		if err != nil {
+			t.Errorf("%s: r %q: %v", k, row[rc], err)
+			continue
+		}
+		if math.Abs(got-want.R) > 1e-9 {
+			t.Errorf("%s: page r = %.12g, native r = %.12g", k, got, want.R)
+		}
+	}
+}
+
+func nativeRun(t *testing.T, recipeJSON []byte, src wire.Source, files job.Files) *report.Results {
+	t.Helper()
+	r, err := recipe.Parse(recipeJSON)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ds, err := job.Open(r, src, files)
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := recipe.Run(context.Background(), r, ds, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return res
+}
+
+// writeTrialsCSV writes a small epoched CSV (trial,time,C4,Pz; 250 Hz, 24
+// trials of −2…2.5 s) whose C4 beta power before 0 s and Pz delta power
+// after it rise and fall together across trials.
+func writeTrialsCSV(t *testing.T, dir string) (string, []byte) {
+	t.Helper()
+	path := filepath.Join(dir, "fixture_trials.csv")
+	f, err := os.Create(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	w := bufio.NewWriter(f)
+	fmt.Fprintln(w, "trial,time,C4,Pz")
+	const rate = 250.0
+	for tr := 0; tr < 24; tr++ {
+		a := 1 + float64((tr*7)%11)/5 // trial gain, shared by both bursts
+		for k := 0; k <= 1125; k++ {
+			tm := -2 + float64(k)/rate
+			noise := math.Sin(float64(k*13+tr*101)) * 0.3
+			c4 := noise + a*math.Sin(2*math.Pi*20*tm)*math.Exp(-sq((tm+0.3)/0.15))
+			pz := noise*0.7 + a*math.Sin(2*math.Pi*2.5*tm)*math.Exp(-sq((tm-0.55)/0.3))
+			fmt.Fprintf(w, "%d,%s,%.6f,%.6f\n", tr+1, strconv.FormatFloat(tm, 'f', 3, 64), c4, pz)
+		}
+	}
+	if err := w.Flush(); err != nil {
+		t.Fatal(err)
+	}
+	f.Close()
+	b, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return path, b
+}
+
+func sq(x float64) float64 { return x * x }
+
+// trialsRecipe suits the trials CSV: C4 beta before the event against
+// delta after it on every channel.
+const trialsRecipe = `{
+  "spectral": {"method": "wavelet", "low": 2, "high": 40, "steps": 20, "spacing": "log", "cycles": [3, 8]},
+  "analyses": [
+    {"id": "fixture", "type": "trial-window", "method": "spearman",
+     "seed":   {"channel": "C4", "time": [-0.5, -0.1], "freq": [15, 25]},
+     "target": {"channel": "*",  "time": [0.3, 0.8],   "freq": [1.5, 3.5]},
+     "permutations": 200, "randomSeed": 11, "correction": "fdr"}
+  ]
+}`
+
+// TestBrowser is the page as a user meets it, end to end in Chromium.
+func TestBrowser(t *testing.T) {
+	if testing.Short() {
+		t.Skip("drives a browser")
+	}
+	if _, err := exec.LookPath("go"); err != nil {
+		if os.Getenv("CI") == "true" {
+			t.Fatal("CI: the Go toolchain is needed to build the site")
+		}
+		t.Skip("needs the Go toolchain to build the site")
+	}
+	b := newBrowser(t)
+	ready := b.open(t, "")
+	t.Logf("timing: page load to ready %v (first visit)", ready.Round(time.Millisecond))
+	// let the service worker finish caching before anything is measured
+	if _, err := chromedp.Run(b.ctx, chromedp.Evaluate[bool](`navigator.serviceWorker.ready.then(() => true)`, chromedp.EvalAwaitPromise)); err != nil {
+		t.Fatal(err)
+	}
+	b.origin.setPhase("idle")
+
+	t.Run("demo", func(t *testing.T) {
+		b.click(t, "load-demo")
+		b.waitState(t, "loaded", 60*time.Second)
+		d := b.runAnalysis(t, 180*time.Second)
+		t.Logf("timing: demo analysis wall time %v", d.Round(time.Millisecond))
+		pt := b.table(t)
+		checkHeader(t, pt.H)
+		if len(pt.R) == 0 {
+			t.Fatal("no result rows")
+		}
+		native := nativeRun(t, demo.Recipe(), wire.Source{Demo: true}, nil)
+		compareNative(t, pt, native)
+		// every figure is shown and every download is offered as a Blob
+		s, err := chromedp.Run(b.ctx, chromedp.Evaluate[string](`JSON.stringify({
+			figs: document.querySelectorAll(".figure img.svgimg").length,
+			links: [...document.querySelectorAll("a[download]")].filter(a => a.href.startsWith("blob:")).map(a => a.getAttribute("download"))})`))
+		if err != nil {
+			t.Fatal(err)
+		}
+		var got struct {
+			Figs  int
+			Links []string
+		}
+		json.Unmarshal([]byte(s), &got)
+		if got.Figs != len(native.Figures) {
+			t.Errorf("%d figures shown, the run made %d", got.Figs, len(native.Figures))
+		}
+		// AMPLINK_SCREENSHOT=file.png keeps a picture of the page, to look at
+		if shot := os.Getenv("AMPLINK_SCREENSHOT"); shot != "" {
+			if png, err := chromedp.Run(b.ctx, chromedp.FullScreenshot(100)); err == nil {
+				os.WriteFile(shot, png, 0o644)
+			}
+		}
+		// open the first figure: it must draw (an SVG image of real size)
+		if len(native.Figures) > 0 {
+			if err := chromedp.Do(b.ctx, chromedp.Click(chromedp.CSS(".figure summary"))); err != nil {
+				t.Fatal(err)
+			}
+			if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`(() => { const i = document.querySelector(".figure img.svgimg"); return i.complete && i.naturalWidth > 100; })()`, chromedp.WithPollingTimeout(20*time.Second))); err != nil {
+				t.Errorf("the first figure did not draw: %v", err)
+			}
+		}
+		want := map[string]bool{"results.csv": true, "results.json": true, "recipe.json": true}
+		for _, f := range native.Figures {
+			want[f.Name+".svg"] = true
+		}
+		for _, l := range got.Links {
+			delete(want, l)
+		}
+		if len(want) > 0 {
+			t.Errorf("downloads missing: %v (offered %v)", want, got.Links)
+		}
+	})
+
+	t.Run("sort", func(t *testing.T) {
+		// keyboard: focus the r header and press Enter
+		if err := chromedp.Do(b.ctx, chromedp.Focus(chromedp.CSS("#results thead th:nth-child(7)")), chromedp.KeyEvent("\r")); err != nil {
+			t.Fatal(err)
+		}
+		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`document.querySelector("#results thead th:nth-child(7)").getAttribute("aria-sort") === "ascending"`, chromedp.WithPollingTimeout(5*time.Second))); err != nil {
+			t.Fatalf("the r column did not sort: %v", err)
+		}
+		pt := b.table(t)
+		prev := math.Inf(-1)
+		for _, row := range pt.R {
+			if row[6] == "" {
+				continue
+			}
+			v, _ := strconv.ParseFloat(row[6], 64)
+			if v < prev {
+				t.Fatalf("rows not in increasing r: %g after %g", v, prev)
+			}
+			prev = v
+		}
+	})
+
+	t.Run("identity", func(t *testing.T) {
+		b.origin.setPhase("analysis")
+		b.click(t, "identity-check")
+		b.waitState(t, "identity-done", 120*time.Second)
+		b.origin.setPhase("idle")
+		got := b.text(t, "#identity-result")
+		if !strings.Contains(got, "passed") {
+			t.Fatalf("identity check: %q", got)
+		}
+	})
+
+	t.Run("power", func(t *testing.T) {
+		b.click(t, "show-power")
+		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`!!document.querySelector("#tf-box #plot-area")`, chromedp.WithPollingTimeout(60*time.Second))); err != nil {
+			t.Fatalf("no power map: %v (%s)", err, b.text(t, ".step:nth-of-type(2) .error"))
+		}
+		// drag a rectangle across the middle of the plot area; the seed
+		// window fields must take the mapped values
+		box, err := chromedp.Run(b.ctx, chromedp.Evaluate[string](`(() => {
+			document.getElementById("tf-box").scrollIntoView({block: "center"});
+			return JSON.stringify(document.getElementById("plot-area").getBoundingClientRect());
+		})()`))
+		if err != nil {
+			t.Fatal(err)
+		}
+		var r struct{ X, Y, Width, Height float64 }
+		json.Unmarshal([]byte(box), &r)
+		x0, y0 := r.X+0.25*r.Width, r.Y+0.3*r.Height
+		x1, y1 := r.X+0.5*r.Width, r.Y+0.6*r.Height
+		if err := chromedp.Do(b.ctx, chromedp.DragAndDropXY(x0, y0, x1, y1, 8)); err != nil {
+			t.Fatal(err)
+		}
+		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`document.getElementById("f-analyses-0-seed-time-0").value !== "-0.5"`, chromedp.WithPollingTimeout(5*time.Second))); err != nil {
+			t.Fatalf("the drag did not set the seed window: %v (page says %q)", err, b.text(t, "#drag-msg"))
+		}
+		v := b.formValues(t)
+		t0, _ := strconv.ParseFloat(v["f-analyses-0-seed-time-0"], 64)
+		t1, _ := strconv.ParseFloat(v["f-analyses-0-seed-time-1"], 64)
+		f0, _ := strconv.ParseFloat(v["f-analyses-0-seed-freq-0"], 64)
+		f1, _ := strconv.ParseFloat(v["f-analyses-0-seed-freq-1"], 64)
+		if !(t0 < t1 && f0 < f1) {
+			t.Fatalf("seed window from the drag: %g–%g s, %g–%g Hz", t0, t1, f0, f1)
+		}
+		t.Logf("dragged seed window: %g–%g s, %g–%g Hz", t0, t1, f0, f1)
+	})
+
+	t.Run("file", func(t *testing.T) {
+		// a recording and a recipe given together: the recipe fills the
+		// form, the recording is summarised, and Run analyses it
+		dir := t.TempDir()
+		path, data := writeTrialsCSV(t, dir)
+		recipePath := filepath.Join(dir, "fixture-recipe.json")
+		if err := os.WriteFile(recipePath, []byte(trialsRecipe), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		if err := chromedp.Do(b.ctx, chromedp.SetUploadFiles(chromedp.ID("file-input"), []string{path, recipePath})); err != nil {
+			t.Fatal(err)
+		}
+		name := filepath.Base(path)
+		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](fmt.Sprintf(`(document.querySelector("#summary") || {textContent: ""}).textContent.includes(%q)`, name), chromedp.WithPollingTimeout(60*time.Second))); err != nil {
+			t.Fatalf("no summary of %s: %v (%s)", name, err, b.text(t, ".step .error"))
+		}
+		b.waitState(t, "loaded", 60*time.Second)
+		if s := b.text(t, "#summary"); !strings.Contains(s, "24 trials") || !strings.Contains(s, "C4") {
+			t.Fatalf("summary: %q", s)
+		}
+		if v := b.formValues(t); v["f-analyses-0-id"] != "fixture" || v["f-spectral-high"] != "40" {
+			t.Fatalf("the recipe did not fill the form: %v", v)
+		}
+		b.runAnalysis(t, 120*time.Second)
+		pt := b.table(t)
+		checkHeader(t, pt.H)
+		if len(pt.R) == 0 {
+			t.Fatal("no result rows")
+		}
+		compareNative(t, pt, nativeRun(t, []byte(trialsRecipe), wire.Source{Name: name}, job.Files{name: data}))
+
+		// a recipe dropped on its own, with a recording open, runs at once
+		b.origin.setPhase("analysis")
+		if err := chromedp.Do(b.ctx, chromedp.SetUploadFiles(chromedp.ID("file-input"), []string{recipePath})); err != nil {
+			t.Fatal(err)
+		}
+		b.waitState(t, "running", 20*time.Second)
+		b.waitState(t, "done", 120*time.Second)
+		b.origin.setPhase("idle")
+		if got := b.table(t); len(got.R) != len(pt.R) {
+			t.Errorf("the re-run gave %d rows, the first run %d", len(got.R), len(pt.R))
+		}
+	})
+
+	t.Run("events", func(t *testing.T) {
+		// a continuous recording with its events in a second file: the
+		// summary counts the events and the epoch settings take the type
+		dir := t.TempDir()
+		var rec strings.Builder
+		rec.WriteString("time,C4,Pz\n")
+		for k := 0; k < 250*40; k++ {
+			tm := float64(k) / 250
+			fmt.Fprintf(&rec, "%.3f,%.5f,%.5f\n", tm, math.Sin(2*math.Pi*10*tm), math.Cos(2*math.Pi*3*tm))
+		}
+		var ev strings.Builder
+		ev.WriteString("onset\tduration\ttrial_type\n")
+		for i := 0; i < 12; i++ {
+			fmt.Fprintf(&ev, "%d\t0.1\ttone\n", 3+3*i)
+		}
+		recPath := filepath.Join(dir, "session_eeg.csv")
+		evPath := filepath.Join(dir, "session_events.tsv")
+		os.WriteFile(recPath, []byte(rec.String()), 0o644)
+		os.WriteFile(evPath, []byte(ev.String()), 0o644)
+		if err := chromedp.Do(b.ctx, chromedp.SetUploadFiles(chromedp.ID("file-input"), []string{recPath, evPath})); err != nil {
+			t.Fatal(err)
+		}
+		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`(document.querySelector("#summary") || {textContent: ""}).textContent.includes("session_eeg.csv")`, chromedp.WithPollingTimeout(60*time.Second))); err != nil {
+			t.Fatalf("no summary: %v (%s)", err, b.text(t, ".step .error"))
+		}
+		b.waitState(t, "loaded", 30*time.Second)
+		s := b.text(t, "#summary")
+		if !strings.Contains(s, "tone × 12") || !strings.Contains(s, "continuous") {
+			t.Fatalf("summary %q: want 12 tone events on continuous data", s)
+		}
+		v := b.formValues(t)
+		if v["f-epochs-enabled"] != "true" || v["f-epochs-event"] != "tone" {
+			t.Errorf("epoch settings not taken from the events: %v", v)
+		}
+	})
+
+	t.Run("audio", func(t *testing.T) {
+		// a WAV file (RIFF/WAVE, 16-bit PCM, mono, 8 kHz, 1 s of 440 Hz):
+		// the page says the gain is unknown and the units arbitrary
+		const rate, n = 8000, 8000
+		var w []byte
+		le32 := func(v uint32) { w = append(w, byte(v), byte(v>>8), byte(v>>16), byte(v>>24)) }
+		le16 := func(v uint16) { w = append(w, byte(v), byte(v>>8)) }
+		w = append(w, "RIFF"...)
+		le32(36 + 2*n)
+		w = append(w, "WAVEfmt "...)
+		le32(16)
+		le16(1)
+		le16(1)
+		le32(rate)
+		le32(2 * rate)
+		le16(2)
+		le16(16)
+		w = append(w, "data"...)
+		le32(2 * n)
+		for k := 0; k < n; k++ {
+			le16(uint16(int16(8000 * math.Sin(2*math.Pi*440*float64(k)/rate))))
+		}
+		path := filepath.Join(t.TempDir(), "tone.wav")
+		os.WriteFile(path, w, 0o644)
+		if err := chromedp.Do(b.ctx, chromedp.SetUploadFiles(chromedp.ID("file-input"), []string{path})); err != nil {
+			t.Fatal(err)
+		}
+		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`(document.querySelector("#summary") || {textContent: ""}).textContent.includes("tone.wav")`, chromedp.WithPollingTimeout(60*time.Second))); err != nil {
+			t.Fatalf("no summary: %v (%s)", err, b.text(t, ".step .error"))
+		}
+		if s := b.text(t, "#summary"); !strings.Contains(s, "gain is unknown") || !strings.Contains(s, "arbitrary units") {
+			t.Errorf("no audio caution in %q", s)
+		}
+	})
+
+	t.Run("cancel", func(t *testing.T) {
+		b.click(t, "load-demo")
+		b.waitState(t, "loaded", 60*time.Second)
+		b.setField(t, "f-analyses-0-permutations", "1000000")
+		b.origin.setPhase("analysis")
+		b.click(t, "run-analysis")
+		b.waitState(t, "running", 10*time.Second)
+		time.Sleep(1500 * time.Millisecond)
+		if s := b.state(t); s != "running" {
+			t.Fatalf("state %q before cancelling: the long run should still be going", s)
+		}
+		b.origin.setPhase("idle")
+		start := time.Now()
+		b.click(t, "cancel-analysis")
+		b.waitState(t, "cancelled", time.Second)
+		t.Logf("timing: cancel shown after %v", time.Since(start).Round(time.Millisecond))
+		if s := b.text(t, "#run-status"); !strings.Contains(s, "cancelled") {
+			t.Fatalf("status %q", s)
+		}
+		// the fresh workers work: the identity check runs to the end
+		b.waitState(t, "cancelled", time.Second)
+		b.click(t, "identity-check")
+		b.waitState(t, "identity-done", 120*time.Second)
+	})
+
+	t.Run("validation", func(t *testing.T) {
+		// a reversed band: the core's message appears at that field, and
+		// Run refuses until it is fixed
+		b.setField(t, "f-analyses-0-seed-freq-0", "30")
+		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`(() => {
+			const f = document.getElementById("f-analyses-0-seed-freq-0").closest(".field");
+			return f.classList.contains("invalid") && f.querySelector(".why").textContent.startsWith("analyses[0].seed.freq");
+		})()`, chromedp.WithPollingTimeout(5*time.Second))); err != nil {
+			t.Fatalf("no message at the seed band field: %v", err)
+		}
+		b.click(t, "run-analysis")
+		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`(document.getElementById("run-error") || {textContent: ""}).textContent.includes("marked field")`, chromedp.WithPollingTimeout(5*time.Second))); err != nil {
+			t.Fatalf("Run did not refuse the bad recipe: %v", err)
+		}
+		b.setField(t, "f-analyses-0-seed-freq-0", "15")
+		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`document.querySelectorAll(".field.invalid").length === 0`, chromedp.WithPollingTimeout(5*time.Second))); err != nil {
+			t.Fatalf("the message stayed after the fix: %v", err)
+		}
+	})
+
+	t.Run("link", func(t *testing.T) {
+		b.setField(t, "f-analyses-0-permutations", "250")
+		b.setField(t, "f-spectral-steps", "24")
+		b.click(t, "copy-link")
+		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`!!document.getElementById("share-url")`, chromedp.WithPollingTimeout(5*time.Second))); err != nil {
+			t.Fatal(err)
+		}
+		link, err := chromedp.Run(b.ctx, chromedp.Evaluate[string](`document.getElementById("share-url").value`))
+		if err != nil {
+			t.Fatal(err)
+		}
+		i := strings.Index(link, "#r=")
+		if i < 0 {
+			t.Fatalf("link %q has no #r= fragment", link)
+		}
+		before := b.formValues(t)
+		b.open(t, link[i:])
+		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`document.getElementById("f-analyses-0-permutations").value === "250"`, chromedp.WithPollingTimeout(5*time.Second))); err != nil {
+			t.Fatalf("the link did not restore the settings: %v", err)
+		}
+		after := b.formValues(t)
+		for k, v := range before {
+			if after[k] != v {
+				t.Errorf("%s: %q before, %q from the link", k, v, after[k])
+			}
+		}
+	})
+
+	t.Run("offline", func(t *testing.T) {
+		b.origin.setOffline(true)
+		defer b.origin.setOffline(false)
+		before := len(b.origin.requests(""))
+		d := b.open(t, "")
+		t.Logf("timing: page load to ready %v (offline, from the service worker's cache)", d.Round(time.Millisecond))
+		b.click(t, "load-demo")
+		b.waitState(t, "loaded", 60*time.Second)
+		b.click(t, "identity-check")
+		b.waitState(t, "identity-done", 120*time.Second)
+		for _, r := range b.origin.requests("")[before:] {
+			// the browser itself checks app-worker.js for an update on
+			// every navigation, past the service worker; offline that
+			// check fails and the cached version keeps serving
+			if r.Path != "/favicon.ico" && r.Path != prefix+"app-worker.js" {
+				t.Errorf("offline, the page still asked the server for %s", r.Path)
+			}
+		}
+	})
+
+	var paths []string
+	for _, r := range b.origin.requests("") {
+		paths = append(paths, r.Path)
+	}
+	t.Logf("requests at the server: %d (%s)", len(paths), strings.Join(uniq(paths), ", "))
+	t.Logf("phases: %v", phaseLog)
+}
+
+func uniq(s []string) []string {
+	seen := map[string]bool{}
+	var out []string
+	for _, v := range s {
+		if !seen[v] {
+			seen[v] = true
+			out = append(out, v)
+		}
+	}
+	return out
+}

@@ -1,0 +1,277 @@
+package job
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"sort"
+	"time"
+
+	"amplink/core/demo"
+	"amplink/core/format"
+	_ "amplink/core/format/all" // every reader
+	"amplink/core/recipe"
+	"amplink/core/report"
+	"amplink/wasm/wire"
+)
+
+// MaxBytes is the most file bytes one worker accepts; see wire.MaxBytes.
+const MaxBytes = wire.MaxBytes
+
+// Worker handles requests one at a time. Its zero value is ready to use.
+type Worker struct {
+	// YieldEvery is how long compute may run before Sleep is called so the
+	// JS event loop can deliver messages; 0 means 50 ms.
+	YieldEvery time.Duration
+	// Sleep hands control back to the JS event loop; nil means time.Sleep
+	// of one millisecond (the only call that yields under js/wasm).
+	Sleep func()
+
+	// kept between OpRun and OpFinish of the same Seq
+	plan *recipe.Plan
+	seq  int
+}
+
+// Files are the bytes that came with a request, by file name.
+type Files map[string][]byte
+
+// Open implements format.Siblings over the files handed to the worker.
+func (f Files) Open(name string) (format.File, error) {
+	b, ok := f[name]
+	if !ok {
+		return format.File{}, fmt.Errorf("%s: %w", name, format.ErrNoSibling)
+	}
+	return format.Bytes(name, b), nil
+}
+
+// Handle runs one request and posts its replies. bufs holds the bytes of
+// req.Source's files (data first, then events, then any sidecars, in the
+// order of names). Errors are posted as OpError replies naming the file or
+// recipe field; Handle itself never panics on data.
+func (w *Worker) Handle(ctx context.Context, req wire.Request, names []string, bufs [][]byte, post func(wire.Reply, [][]byte)) {
+	fail := func(err error) {
+		post(wire.Reply{Op: wire.OpError, Seq: req.Seq, Error: err.Error()}, nil)
+	}
+	if len(names) != len(bufs) {
+		fail(fmt.Errorf("worker: %d file names for %d buffers", len(names), len(bufs)))
+		return
+	}
+	files := Files{}
+	var total int64
+	for i, n := range names {
+		files[n] = bufs[i]
+		total += int64(len(bufs[i]))
+	}
+	if total > MaxBytes {
+		fail(fmt.Errorf("%s: %d MiB of files is more than the %d MiB one worker can hold", req.Source.Name, total>>20, MaxBytes>>20))
+		return
+	}
+	switch req.Op {
+	case wire.OpDescribe, wire.OpDemo:
+		var r *recipe.Recipe
+		if len(req.Recipe) > 0 {
+			var err error
+			if r, err = recipe.Parse(req.Recipe); err != nil {
+				fail(err)
+				return
+			}
+		}
+		ds, err := Open(r, req.Source, files)
+		if err != nil {
+			fail(err)
+			return
+		}
+		sum, err := json.Marshal(recipe.Describe(ds))
+		if err != nil {
+			fail(err)
+			return
+		}
+		rep := wire.Reply{Op: wire.OpSummary, Seq: req.Seq, Summary: sum}
+		if req.Source.Demo {
+			rep.Recipe = demo.Recipe()
+		}
+		post(rep, nil)
+	case wire.OpRun:
+		w.plan = nil
+		p, err := w.planFor(req, files)
+		if err != nil {
+			fail(err)
+			return
+		}
+		units := p.Units()
+		mine := Assign(units, max(req.Workers, 1))
+		if req.Worker < 0 || req.Worker >= len(mine) {
+			fail(fmt.Errorf("worker: number %d of %d", req.Worker, len(mine)))
+			return
+		}
+		res, err := w.compute(ctx, p, mine[req.Worker], len(units), func(done int) {
+			post(wire.Reply{Op: wire.OpProgress, Seq: req.Seq, Done: done, Total: len(units)}, nil)
+		})
+		if err != nil {
+			fail(err)
+			return
+		}
+		w.plan, w.seq = p, req.Seq
+		post(wire.Reply{Op: wire.OpUnits, Seq: req.Seq, Total: len(units)}, [][]byte{EncodeUnits(res)})
+	case wire.OpFinish:
+		if w.plan == nil || w.seq != req.Seq {
+			fail(errors.New("worker: finish without a matching run"))
+			return
+		}
+		var all []recipe.UnitResult
+		for i, b := range bufs {
+			u, err := DecodeUnits(b)
+			if err != nil {
+				fail(fmt.Errorf("worker: units from worker %d: %w", i, err))
+				return
+			}
+			all = append(all, u...)
+		}
+		res, err := w.plan.Finish(ctx, all)
+		if err != nil {
+			fail(err)
+			return
+		}
+		rep, out, err := ResultsReply(res)
+		if err != nil {
+			fail(err)
+			return
+		}
+		rep.Seq = req.Seq
+		post(rep, out)
+	case wire.OpPower:
+		fig, err := Power(req, files)
+		if err != nil {
+			fail(err)
+			return
+		}
+		post(wire.Reply{Op: wire.OpPower, Seq: req.Seq, Figure: fig}, nil)
+	default:
+		fail(fmt.Errorf("worker: unknown operation %q", req.Op))
+	}
+}
+
+func (w *Worker) planFor(req wire.Request, files Files) (*recipe.Plan, error) {
+	r, err := recipe.Parse(req.Recipe)
+	if err != nil {
+		return nil, err
+	}
+	ds, err := Open(r, req.Source, files)
+	if err != nil {
+		return nil, err
+	}
+	return recipe.NewPlan(r, ds)
+}
+
+// compute runs the listed units in order, reporting the count done after
+// each, and yields to the event loop at least every YieldEvery.
+func (w *Worker) compute(ctx context.Context, p *recipe.Plan, ids []int, total int, progress func(done int)) ([]recipe.UnitResult, error) {
+	every := w.YieldEvery
+	if every <= 0 {
+		every = 50 * time.Millisecond
+	}
+	sleep := w.Sleep
+	if sleep == nil {
+		sleep = func() { time.Sleep(time.Millisecond) }
+	}
+	last := time.Now()
+	out := make([]recipe.UnitResult, 0, len(ids))
+	for i, id := range ids {
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
+		r, err := p.Compute(ctx, id)
+		if err != nil {
+			return nil, err
+		}
+		out = append(out, r)
+		progress(i + 1)
+		if time.Since(last) >= every {
+			sleep()
+			last = time.Now()
+		}
+	}
+	return out, nil
+}
+
+// Open decodes the source into a dataset: the demo recording, or the named
+// data file with its events file and sidecars.
+func Open(r *recipe.Recipe, src wire.Source, files Files) (*recipe.Dataset, error) {
+	if src.Demo {
+		return demoDataset(r)
+	}
+	b, ok := files[src.Name]
+	if !ok {
+		return nil, fmt.Errorf("worker: no bytes for %q", src.Name)
+	}
+	var ev *format.File
+	if src.EventsName != "" {
+		eb, ok := files[src.EventsName]
+		if !ok {
+			return nil, fmt.Errorf("worker: no bytes for %q", src.EventsName)
+		}
+		f := format.Bytes(src.EventsName, eb)
+		ev = &f
+	}
+	return recipe.Open(r, format.Bytes(src.Name, b), ev, files)
+}
+
+// Assign splits units over n workers: longest first onto the least loaded
+// worker (ties to the lower number), so the split depends only on the plan.
+// Each worker's list is in increasing unit ID.
+func Assign(units []recipe.Unit, n int) [][]int {
+	if n < 1 {
+		panic("job: Assign needs at least one worker")
+	}
+	order := make([]int, len(units))
+	for i := range order {
+		order[i] = i
+	}
+	sort.SliceStable(order, func(a, b int) bool {
+		ua, ub := units[order[a]], units[order[b]]
+		if ua.Cost != ub.Cost {
+			return ua.Cost > ub.Cost
+		}
+		return ua.ID < ub.ID
+	})
+	load := make([]float64, n)
+	out := make([][]int, n)
+	for _, i := range order {
+		k := 0
+		for j := 1; j < n; j++ {
+			if load[j] < load[k] {
+				k = j
+			}
+		}
+		load[k] += units[i].Cost
+		out[k] = append(out[k], units[i].ID)
+	}
+	for _, l := range out {
+		sort.Ints(l)
+	}
+	return out
+}
+
+// ResultsReply turns results into the OpResults reply. The reply holds
+// results.csv (the page shows it as the table), the figure names and
+// titles, and the warnings; the bulky parts travel as buffers beside it,
+// never through JSON: bufs[0] is results.json and bufs[1+i] the SVG of
+// figure i. The page makes them Blobs without copying them through Go.
+func ResultsReply(res *report.Results) (wire.Reply, [][]byte, error) {
+	var c, j bytes.Buffer
+	if err := report.WriteCSV(&c, res); err != nil {
+		return wire.Reply{}, nil, err
+	}
+	if err := report.WriteJSON(&j, res); err != nil {
+		return wire.Reply{}, nil, err
+	}
+	rep := wire.Reply{Op: wire.OpResults, CSV: c.String(), Warnings: res.Warnings}
+	bufs := [][]byte{j.Bytes()}
+	for _, f := range res.Figures {
+		rep.Figures = append(rep.Figures, wire.Figure{Name: f.Name, Title: f.Title})
+		bufs = append(bufs, []byte(f.SVG))
+	}
+	return rep, bufs, nil
+}

@@ -1,0 +1,332 @@
+package job
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"reflect"
+	"strings"
+	"testing"
+
+	"amplink/core/demo"
+	"amplink/core/recipe"
+	"amplink/core/report"
+	"amplink/wasm/wire"
+)
+
+func TestUnitsRoundTrip(t *testing.T) {
+	cases := []struct {
+		name string
+		in   []recipe.UnitResult
+	}{
+		{"none", nil},
+		{"empty values", []recipe.UnitResult{{ID: 3}}},
+		{"special values", []recipe.UnitResult{{ID: 0, Values: []float64{math.NaN(), math.Inf(1), math.Inf(-1), -0.0, 5e-324, math.MaxFloat64}}}},
+		{"several", []recipe.UnitResult{{ID: 2, Values: []float64{1, 2}}, {ID: 0, Values: []float64{0.1}}}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			got, err := DecodeUnits(EncodeUnits(c.in))
+			if err != nil {
+				t.Fatal(err)
+			}
+			if len(got) != len(c.in) {
+				t.Fatalf("%d units, want %d", len(got), len(c.in))
+			}
+			for i := range got {
+				if got[i].ID != c.in[i].ID || len(got[i].Values) != len(c.in[i].Values) {
+					t.Fatalf("unit %d: %+v, want %+v", i, got[i], c.in[i])
+				}
+				for k, v := range got[i].Values {
+					// bit for bit, NaN and the sign of zero included
+					if math.Float64bits(v) != math.Float64bits(c.in[i].Values[k]) {
+						t.Errorf("unit %d value %d: %v, want %v", i, k, v, c.in[i].Values[k])
+					}
+				}
+			}
+		})
+	}
+}
+
+// TestUnitsLayout checks the bytes against the layout in units.go, written
+// out by hand (little-endian, IEEE 754 binary64: 1.0 = 0x3FF0000000000000).
+func TestUnitsLayout(t *testing.T) {
+	got := EncodeUnits([]recipe.UnitResult{{ID: 5, Values: []float64{1}}})
+	want := []byte{1, 0, 0, 0, 5, 0, 0, 0, 1, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0xf0, 0x3f}
+	if !bytes.Equal(got, want) {
+		t.Fatalf("bytes % x, want % x", got, want)
+	}
+}
+
+func TestDecodeUnitsErrors(t *testing.T) {
+	cases := []struct {
+		name string
+		in   []byte
+		want string
+	}{
+		{"short", []byte{1, 0}, "2 bytes"},
+		{"count too big", []byte{0xff, 0xff, 0xff, 0x0f}, "cannot fit"},
+		{"values truncated", []byte{1, 0, 0, 0, 0, 0, 0, 0, 2, 0, 0, 0, 1, 2, 3}, "values truncated at byte 12"},
+		{"left over", append(EncodeUnits([]recipe.UnitResult{{ID: 1}}), 9), "1 bytes left over"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			_, err := DecodeUnits(c.in)
+			if err == nil || !errors.Is(err, ErrUnitBytes) || !strings.Contains(err.Error(), c.want) {
+				t.Fatalf("error %v, want %q", err, c.want)
+			}
+		})
+	}
+}
+
+// FuzzDecodeUnits: any bytes give units or an error, never a panic, and
+// what decodes re-encodes to the same bytes.
+func FuzzDecodeUnits(f *testing.F) {
+	seeds, _ := filepath.Glob(filepath.Join("testdata", "*.units"))
+	for _, s := range seeds {
+		b, err := os.ReadFile(s)
+		if err != nil {
+			f.Fatal(err)
+		}
+		f.Add(b)
+	}
+	f.Add(EncodeUnits([]recipe.UnitResult{{ID: 1, Values: []float64{math.NaN()}}}))
+	f.Fuzz(func(t *testing.T, b []byte) {
+		u, err := DecodeUnits(b)
+		if err != nil {
+			return
+		}
+		if got := EncodeUnits(u); !bytes.Equal(got, b) {
+			t.Fatalf("re-encoding changed the bytes")
+		}
+	})
+}
+
+func TestAssign(t *testing.T) {
+	units := []recipe.Unit{{ID: 0, Cost: 5}, {ID: 1, Cost: 1}, {ID: 2, Cost: 4}, {ID: 3, Cost: 3}, {ID: 4, Cost: 3}}
+	cases := []struct {
+		name string
+		n    int
+		want [][]int
+	}{
+		{"one worker", 1, [][]int{{0, 1, 2, 3, 4}}},
+		// longest first onto the least loaded: 5→w0, 4→w1, 3 (id 3)→w1 (4 < 5), 3 (id 4)→w0 (5 < 7), 1→w1 (7 < 8)
+		{"two workers", 2, [][]int{{0, 4}, {1, 2, 3}}},
+		{"more workers than units", 7, [][]int{{0}, {2}, {3}, {4}, {1}, nil, nil}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			got := Assign(units, c.n)
+			if !reflect.DeepEqual(got, c.want) {
+				t.Fatalf("Assign = %v, want %v", got, c.want)
+			}
+			seen := map[int]bool{}
+			for _, l := range got {
+				for _, id := range l {
+					if seen[id] {
+						t.Fatalf("unit %d assigned twice", id)
+					}
+					seen[id] = true
+				}
+			}
+			if len(seen) != len(units) {
+				t.Fatalf("%d of %d units assigned", len(seen), len(units))
+			}
+		})
+	}
+}
+
+// replies collects what a Worker posts.
+type replies struct {
+	reps []wire.Reply
+	bufs [][][]byte
+}
+
+func (r *replies) post(rep wire.Reply, bufs [][]byte) {
+	r.reps = append(r.reps, rep)
+	r.bufs = append(r.bufs, bufs)
+}
+
+func (r *replies) last(t *testing.T, op string) (wire.Reply, [][]byte) {
+	t.Helper()
+	if len(r.reps) == 0 {
+		t.Fatalf("no reply, want %s", op)
+	}
+	rep := r.reps[len(r.reps)-1]
+	if rep.Op != op {
+		t.Fatalf("reply %s (%s), want %s", rep.Op, rep.Error, op)
+	}
+	return rep, r.bufs[len(r.bufs)-1]
+}
+
+// trialsCSV is a small epoched recording (trial,time,C4,Pz; 250 Hz; 16
+// trials of −1.5…2 s) whose C4 beta before 0 s and Pz delta after it share
+// a per-trial gain, so the two window powers co-vary across trials.
+func trialsCSV() []byte {
+	var b strings.Builder
+	b.WriteString("trial,time,C4,Pz\n")
+	const rate = 250.0
+	for tr := 0; tr < 16; tr++ {
+		a := 1 + float64((tr*7)%11)/5
+		for k := 0; k <= 875; k++ {
+			tm := -1.5 + float64(k)/rate
+			noise := math.Sin(float64(k*13+tr*101)) * 0.3
+			c4 := noise + a*math.Sin(2*math.Pi*20*tm)*math.Exp(-math.Pow((tm+0.3)/0.15, 2))
+			pz := noise*0.7 + a*math.Sin(2*math.Pi*2.5*tm)*math.Exp(-math.Pow((tm-0.55)/0.3, 2))
+			fmt.Fprintf(&b, "%d,%.3f,%.6f,%.6f\n", tr+1, tm, c4, pz)
+		}
+	}
+	return []byte(b.String())
+}
+
+const smallRecipe = `{"spectral": {"low": 2, "high": 30, "steps": 10},
+ "analyses": [{"id": "w", "type": "trial-window",
+   "seed": {"channel": "C4", "time": [-0.5, -0.1], "freq": [15, 25]},
+   "target": {"channel": "*", "time": [0.3, 0.8], "freq": [2, 4]},
+   "permutations": 200, "randomSeed": 3, "correction": "fdr"}]}`
+
+// TestSplitEqualsRun runs a recording the way the page does — units split
+// over W workers, each decoding its own copy of the bytes, then Finish on
+// worker 0 — and compares results.csv with recipe.Run natively: they must
+// be byte-identical, whatever W.
+func TestSplitEqualsRun(t *testing.T) {
+	data := trialsCSV()
+	src := wire.Source{Name: "trials.csv"}
+	r, err := recipe.Parse([]byte(smallRecipe))
+	if err != nil {
+		t.Fatal(err)
+	}
+	ds, err := Open(r, src, Files{"trials.csv": data})
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := recipe.Run(context.Background(), r, ds, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(res.Rows) == 0 {
+		t.Fatal("no rows")
+	}
+	var want bytes.Buffer
+	if err := report.WriteCSV(&want, res); err != nil {
+		t.Fatal(err)
+	}
+	for _, n := range []int{1, 2, 3} {
+		t.Run(strings.Repeat("w", n), func(t *testing.T) {
+			workers := make([]*Worker, n)
+			var unitBufs [][]byte
+			var names []string
+			progress := 0
+			for k := range workers {
+				workers[k] = &Worker{}
+				var rp replies
+				// each worker gets its own copy, as a transferred buffer is
+				workers[k].Handle(context.Background(), wire.Request{Op: wire.OpRun, Seq: 4, Source: src, Recipe: []byte(smallRecipe), Worker: k, Workers: n},
+					[]string{"trials.csv"}, [][]byte{append([]byte(nil), data...)}, rp.post)
+				_, bufs := rp.last(t, wire.OpUnits)
+				for _, rep := range rp.reps {
+					if rep.Op == wire.OpProgress {
+						progress++
+					}
+				}
+				unitBufs = append(unitBufs, bufs[0])
+				names = append(names, "units")
+			}
+			var rp replies
+			workers[0].Handle(context.Background(), wire.Request{Op: wire.OpFinish, Seq: 4}, names, unitBufs, rp.post)
+			rep, out := rp.last(t, wire.OpResults)
+			if len(out) != 1+len(rep.Figures) || len(rep.Figures) != len(res.Figures) {
+				t.Fatalf("%d buffers for %d figures (native %d)", len(out), len(rep.Figures), len(res.Figures))
+			}
+			if !json.Valid(out[0]) {
+				t.Error("buffer 0 is not results.json")
+			}
+			for i, f := range res.Figures {
+				if string(out[1+i]) != f.SVG || rep.Figures[i].Name != f.Name {
+					t.Errorf("figure %d (%s) differs from the native one", i, f.Name)
+				}
+			}
+			if rep.CSV != want.String() {
+				t.Fatalf("split results.csv differs from recipe.Run:\n%s\nwant\n%s", rep.CSV, want.String())
+			}
+			if progress == 0 {
+				t.Error("no progress replies")
+			}
+		})
+	}
+	// a finish with a unit missing is refused, not half-done
+	var w Worker
+	var rp replies
+	w.Handle(context.Background(), wire.Request{Op: wire.OpRun, Seq: 5, Source: src, Recipe: []byte(smallRecipe), Workers: 2}, []string{"trials.csv"}, [][]byte{data}, rp.post)
+	_, bufs := rp.last(t, wire.OpUnits)
+	w.Handle(context.Background(), wire.Request{Op: wire.OpFinish, Seq: 5}, []string{"units"}, bufs[0:1], rp.post)
+	if rep, _ := rp.last(t, wire.OpError); !strings.Contains(rep.Error, "unit results for") {
+		t.Errorf("finish with half the units: %q", rep.Error)
+	}
+}
+
+func TestHandleErrors(t *testing.T) {
+	csvBad := []byte("trial,time,C4\n1,0,abc\n")
+	cases := []struct {
+		name  string
+		req   wire.Request
+		names []string
+		bufs  [][]byte
+		want  string
+	}{
+		{"bad recipe", wire.Request{Op: wire.OpRun, Source: wire.Source{Demo: true}, Recipe: []byte(`{"analyses":[{"type":"trial-window","seed":{"channel":"C4","time":[0,1],"freq":[30,20]}}]}`)}, nil, nil, "analyses[0].seed.freq"},
+		{"bad file", wire.Request{Op: wire.OpDescribe, Source: wire.Source{Name: "x.csv"}}, []string{"x.csv"}, [][]byte{csvBad}, "x.csv:2"},
+		{"missing bytes", wire.Request{Op: wire.OpDescribe, Source: wire.Source{Name: "x.csv"}}, nil, nil, `no bytes for "x.csv"`},
+		{"finish without run", wire.Request{Op: wire.OpFinish, Seq: 9}, nil, nil, "finish without a matching run"},
+		{"unknown op", wire.Request{Op: "dance"}, nil, nil, `unknown operation "dance"`},
+		{"names and buffers", wire.Request{Op: wire.OpDescribe}, []string{"a", "b"}, [][]byte{nil}, "2 file names for 1 buffers"},
+		{"unknown channel", wire.Request{Op: wire.OpPower, Source: wire.Source{Demo: true}, Recipe: demo.Recipe(), Channel: "nope"}, nil, nil, `no channel "nope"`},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			var w Worker
+			var rp replies
+			w.Handle(context.Background(), c.req, c.names, c.bufs, rp.post)
+			rep, _ := rp.last(t, wire.OpError)
+			if !strings.Contains(rep.Error, c.want) {
+				t.Fatalf("error %q, want %q", rep.Error, c.want)
+			}
+		})
+	}
+}
+
+func TestDescribeDemo(t *testing.T) {
+	var w Worker
+	var rp replies
+	w.Handle(context.Background(), wire.Request{Op: wire.OpDemo, Seq: 1, Source: wire.Source{Demo: true}}, nil, nil, rp.post)
+	rep, _ := rp.last(t, wire.OpSummary)
+	var s recipe.Summary
+	if err := json.Unmarshal(rep.Summary, &s); err != nil {
+		t.Fatal(err)
+	}
+	if s.Trials == 0 || len(s.Channels) == 0 || s.Rate == 0 {
+		t.Fatalf("demo summary %+v", s)
+	}
+	if !bytes.Equal(rep.Recipe, demo.Recipe()) {
+		t.Error("the demo summary does not carry the demo recipe")
+	}
+}
+
+// TestPower draws the check map for one demo channel: an SVG with the
+// plot-area geometry the page maps pointer positions through.
+func TestPower(t *testing.T) {
+	fig, err := Power(wire.Request{Op: wire.OpPower, Source: wire.Source{Demo: true}, Recipe: demo.Recipe(), Channel: "C4"}, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{"<svg", `id="plot-area"`, `data-xmin="`, `data-ylog="true"`, "beta-to-delta seed"} {
+		if !strings.Contains(fig.SVG, want) {
+			t.Errorf("power SVG lacks %s", want)
+		}
+	}
+}

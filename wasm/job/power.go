@@ -1,0 +1,133 @@
+package job
+
+import (
+	"errors"
+	"fmt"
+
+	"amplink/core/data"
+	"amplink/core/demo"
+	"amplink/core/plot"
+	"amplink/core/recipe"
+	"amplink/core/spectral"
+	"amplink/wasm/wire"
+)
+
+// maxPowerCols bounds the columns of the check map: a column every
+// ⌈samples/maxPowerCols⌉ samples is enough to see where power sits.
+const maxPowerCols = 300
+
+// demoDataset is the demo recording, cut as r asks (or as the demo recipe
+// does when r is nil).
+func demoDataset(r *recipe.Recipe) (*recipe.Dataset, error) {
+	if r == nil {
+		var err error
+		if r, err = recipe.Parse(demo.Recipe()); err != nil {
+			return nil, fmt.Errorf("demo recipe: %w", err)
+		}
+	}
+	rec := demo.Recording()
+	ds := &recipe.Dataset{Name: "demo", Format: rec.Format, Recording: rec, Notes: append([]string(nil), rec.Notes...)}
+	if r.Epochs != nil {
+		ep, err := data.Epoch(rec, nil, r.Epochs.Event, r.Epochs.Start, r.Epochs.End)
+		if err != nil {
+			return nil, err
+		}
+		ep.Name = "demo"
+		ds.Epochs = ep
+	}
+	return ds, nil
+}
+
+// Power computes the trial-averaged time-frequency power of one channel
+// with the recipe's spectral settings,
+//
+//	P(f, t) = (1/N) Σ_trials |x ∗ w_f|²(t)   (µV², or the square of the data unit)
+//
+// and draws it with plot.TFPower, outlining the recipe's windows on that
+// channel. The seed and target windows can then be chosen on it.
+func Power(req wire.Request, files Files) (*wire.Figure, error) {
+	r, err := recipe.Parse(req.Recipe)
+	if err != nil {
+		return nil, err
+	}
+	ds, err := Open(r, req.Source, files)
+	if err != nil {
+		return nil, err
+	}
+	e := ds.Epochs
+	if e == nil {
+		return nil, errors.New("epochs: the power map needs trials; " + ds.Name + " is continuous, so tick \"Cut continuous data into epochs\" and name the event")
+	}
+	ch := data.Lookup(e.Channels, req.Channel)
+	if ch < 0 {
+		return nil, fmt.Errorf("%s: no channel %q", ds.Name, req.Channel)
+	}
+	sp := r.Spectral
+	freqs, err := spectral.Frequencies(sp.Low, sp.High, sp.Steps, sp.Spacing)
+	if err != nil {
+		return nil, fmt.Errorf("spectral: %v", err)
+	}
+	if sp.High >= e.Rate/2 {
+		return nil, fmt.Errorf("spectral.high: %g Hz is at or above the Nyquist frequency %g Hz of %s", sp.High, e.Rate/2, ds.Name)
+	}
+	bank, err := spectral.NewBank(e.Rate, freqs, spectral.Cycles(len(freqs), sp.Cycles[0], sp.Cycles[1]))
+	if err != nil {
+		return nil, fmt.Errorf("spectral: %v", err)
+	}
+	idx := make([]int, len(freqs))
+	for i := range idx {
+		idx[i] = i
+	}
+	n := e.NSamples
+	conv := bank.NewConvolver(spectral.FFTLen(n, bank.MaxHalf(idx)))
+	step := max(1, (n+maxPowerCols-1)/maxPowerCols)
+	var pow [][]float64
+	for t := 0; t < e.NTrials; t++ {
+		conv.Load(e.Trial(t, ch))
+		pow = spectral.TFPower(pow, conv, idx, 0, n, step)
+	}
+	for _, row := range pow {
+		for j := range row {
+			row[j] /= float64(e.NTrials)
+		}
+	}
+	times := make([]float64, spectral.TFCols(0, n, step))
+	for j := range times {
+		times[j] = e.Time(j * step)
+	}
+	var wins []plot.Window
+	for _, a := range r.Analyses {
+		for _, w := range []struct {
+			label string
+			win   *recipe.Window
+		}{{a.ID + " seed", a.Seed}, {a.ID + " target", a.Target}} {
+			if w.win == nil || !names(w.win.Channel, req.Channel) {
+				continue
+			}
+			wins = append(wins, plot.Window{Label: w.label, T0: w.win.Time[0], T1: w.win.Time[1], F0: w.win.Freq[0], F1: w.win.Freq[1]})
+		}
+	}
+	unit := "µV²"
+	if u := e.Channels[ch].Unit; u != "" && u != "uV" && u != "µV" {
+		unit = u + "²"
+	}
+	title := fmt.Sprintf("%s: power, mean of %d trials", req.Channel, e.NTrials)
+	svg, _ := plot.TFPower(pow, freqs, times, plot.TFPowerOptions{
+		Frame:       plot.Frame{Title: title, Width: 640, Height: 360},
+		LogColour:   true,
+		Windows:     wins,
+		ColourLabel: "power",
+		ColourUnit:  unit,
+	})
+	return &wire.Figure{Name: "power-" + req.Channel, Title: title, SVG: svg}, nil
+}
+
+// names reports whether a window's channel selection includes ch.
+func names(sel []string, ch string) bool {
+	for _, s := range sel {
+		if s == "*" || s == ch {
+			return true
+		}
+	}
+	return false
+}
