@@ -227,3 +227,35 @@ func approxEqual(a, b string) bool {
 	y, err2 := strconv.ParseFloat(b, 64)
 	return err1 == nil && err2 == nil && math.Abs(x-y) < 1e-12
 }
+
+// --groups on run: per-group rows and a Welch difference row, as merge gives.
+func TestRunGroups(t *testing.T) {
+	dir := t.TempDir()
+	in := writeFixture(t, dir)
+	b, _ := os.ReadFile(in)
+	var ins []string
+	for _, n := range []string{"a1.csv", "a2.csv", "b1.csv", "b2.csv"} {
+		p := filepath.Join(dir, n)
+		os.WriteFile(p, b, 0o644)
+		ins = append(ins, p)
+	}
+	gp := filepath.Join(dir, "groups.csv")
+	os.WriteFile(gp, []byte("recording,group\na1.csv,A\na2.csv,A\nb1.csv,B\nb2.csv,B\n"), 0o644)
+	rp := filepath.Join(dir, "r.json")
+	os.WriteFile(rp, []byte(fixtureRecipe), 0o644)
+	out := filepath.Join(dir, "out")
+	var stdout, stderr bytes.Buffer
+	if err := run(&stdout, &stderr, append([]string{"run", "--recipe", rp, "--out", out, "--groups", gp}, ins...)); err != nil {
+		t.Fatalf("%v\n%s", err, stderr.String())
+	}
+	got, _ := os.ReadFile(filepath.Join(out, "results.csv"))
+	for _, want := range []string{",group:A", ",group:B", ",group:A-B"} {
+		if !strings.Contains(string(got), want) {
+			t.Errorf("results lack a %q row", want)
+		}
+	}
+	err := run(&stdout, &stderr, []string{"run", "--recipe", rp, "--out", out, "--groups", gp, ins[0]})
+	if err == nil || !strings.Contains(err.Error(), "give more than one input file") {
+		t.Errorf("--groups with one file: %v", err)
+	}
+}

@@ -44,12 +44,17 @@ func cmdRun(stdout, stderr io.Writer, args []string) error {
 	eventsPath := fs.String("events", "", "events file (BIDS events.tsv) for continuous input")
 	trialsPath := fs.String("trials", "", "per-trial values (CSV trial,<name>...) for covariates and conditions")
 	workers := fs.Int("workers", 0, "parallel workers (0: one per core)")
+	groupsPath := fs.String("groups", "", "with several recordings: a CSV recording,group naming two groups to compare")
+	level := fs.Float64("level", 0.95, "confidence level of the group intervals")
 	files, err := parseInterleaved(fs, args)
 	if err != nil {
 		return err
 	}
 	if *recipePath == "" {
 		return errors.New("run: --recipe is required")
+	}
+	if !(*level > 0 && *level < 1) {
+		return fmt.Errorf("run: --level %g must lie between 0 and 1", *level)
 	}
 	if len(files) == 0 {
 		return errors.New("run: no input file given")
@@ -112,11 +117,19 @@ func cmdRun(stdout, stderr io.Writer, args []string) error {
 	}
 	if len(files) > 1 {
 		// Group rows across the recordings (the same rows amplink merge adds).
-		g, err := report.GroupRows(all.Rows, nil, 0.95)
+		var groups map[string]string
+		if *groupsPath != "" {
+			if groups, err = readGroups(stderr, *groupsPath, all.Rows); err != nil {
+				return err
+			}
+		}
+		g, err := report.GroupRows(all.Rows, groups, *level)
 		if err != nil {
 			return err
 		}
 		all.Rows = append(all.Rows, g...)
+	} else if *groupsPath != "" {
+		return errors.New("run: --groups compares recordings; give more than one input file")
 	}
 	for _, w := range all.Warnings {
 		fmt.Fprintln(stderr, "note:", w)
