@@ -37,6 +37,11 @@ func WindowPower(ctx context.Context, dst []float64, bank *spectral.Bank, e *dat
 		// Only the window's own samples are read, so the FFT need only keep
 		// those free of wrap-around (Convolver.Tight).
 		nfft := spectral.TightFFTLen(hi-lo, sp.From-lo, sp.To-lo, h)
+		// A power of two up to 1.5× longer runs gonum's radix
+		// kernels, about 1.5× faster at these lengths than a mixed-radix one.
+		if p2 := spectral.PowerOfTwo(nfft); p2 <= spectral.MaxRadixLen && p2*2 <= nfft*3 {
+			nfft = p2
+		}
 		crops[s] = crop{lo, hi, nfft}
 		if convs[nfft] == nil {
 			c := bank.NewConvolver(nfft)
