@@ -356,13 +356,32 @@ func (ep *envPlan) compute(ctx context.Context, p *Plan, seg int, span [2]int) (
 		series[n+i] = bin(nil, abs(z))
 	}
 	if a.Orthogonalize == OrthPairwise {
+		// |Y⊥X| = |Im(y·x̄)|/|x| = |Im(y·ū)| with the unit phasor u = x/|x|
+		// (connect.OrthAmp), so each channel's phasors are computed once.
+		inv := 1 / float64(ep.bin)
+		u := make([]complex128, m)
 		for i := range n {
+			for k, v := range za[i] {
+				u[k] = 0
+				if a := math.Hypot(real(v), imag(v)); a > 0 {
+					u[k] = complex(real(v)/a, imag(v)/a)
+				}
+			}
 			for j := range n {
 				if i == j {
 					continue
 				}
-				x, y := za[i], za[j]
-				series[ep.orthSeries(i, j)] = bin(nil, func(k int) float64 { return connect.OrthAmp(x[k], y[k]) })
+				y := za[j]
+				dst := make([]float64, nb)
+				for b := range nb {
+					sum := 0.0
+					for k := b * ep.bin; k < (b+1)*ep.bin; k++ {
+						// Im(y·ū) = imag(y)·real(u) − real(y)·imag(u)
+						sum += math.Abs(imag(y[k])*real(u[k]) - real(y[k])*imag(u[k]))
+					}
+					dst[b] = sum * inv
+				}
+				series[ep.orthSeries(i, j)] = dst
 			}
 		}
 	}
