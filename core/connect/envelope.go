@@ -17,25 +17,11 @@ import (
 // the mean of the analytic wavelet outputs at the K grid frequencies of the
 // band. Its modulus |z_B| is the band's amplitude envelope and its argument
 // the band's phase. With one frequency it is that wavelet's analytic signal.
-// tmp is scratch space of the same length (allocated when too short).
+// tmp is kept for callers that pass scratch space; it is returned unused.
 func BandSignal(dst, tmp []complex128, conv *spectral.Convolver, freqs []int, from, to int) (z, scratch []complex128) {
-	m := to - from
-	if cap(dst) < m {
-		dst = make([]complex128, m)
-	}
-	dst = dst[:m]
-	clear(dst)
-	for _, f := range freqs {
-		tmp = conv.Analytic(tmp, f, from, to)
-		for j, v := range tmp {
-			dst[j] += v
-		}
-	}
-	k := complex(1/float64(len(freqs)), 0)
-	for j := range dst {
-		dst[j] *= k
-	}
-	return dst, tmp
+	// One inverse FFT with the band kernel (Convolver.BandAnalytic) gives
+	// the same mean as K single-wavelet transforms.
+	return conv.BandAnalytic(dst, freqs, from, to), tmp
 }
 
 // OrthAmp returns |Y⊥X| = |Im(y·x̄)|/|x| = |y|·|sin(φy − φx)|, the amplitude

@@ -20,6 +20,7 @@ type Bank struct {
 
 	mu      sync.Mutex
 	spectra map[specKey]*specEntry
+	bands   map[string]*bandEntry
 }
 
 type specKey struct{ i, nfft int }
