@@ -211,6 +211,12 @@ func TestRunSeveralRecordings(t *testing.T) {
 	if len(recs) != 1+3+3+3 {
 		t.Fatalf("%d lines, want header + 3 + 3 per-recording rows + 3 group rows", len(recs))
 	}
+	for _, name := range []string{"group_s2all_S_S", "group_s2all_S_T", "group_s2all_S_U"} {
+		b, err := os.ReadFile(filepath.Join(out, "figures", name+".svg"))
+		if err != nil || !strings.Contains(string(b), "small2.csv") || !strings.Contains(string(b), "<svg") {
+			t.Errorf("group figure %s missing or without the recordings: %v", name, err)
+		}
+	}
 	for i := 1; i <= 3; i++ {
 		per, grp := recs[i], recs[6+i]
 		if grp[col["recording"]] != "group" || grp[col["n"]] != "2" {

@@ -128,6 +128,9 @@ func cmdRun(stdout, stderr io.Writer, args []string) error {
 			return err
 		}
 		all.Rows = append(all.Rows, g...)
+		if rcp.Figures.Enabled {
+			all.Figures = append(all.Figures, report.GroupFigures(all.Rows)...)
+		}
 	} else if *groupsPath != "" {
 		return errors.New("run: --groups compares recordings; give more than one input file")
 	}

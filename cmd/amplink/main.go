@@ -2,7 +2,7 @@
 // and LFP recordings.
 //
 //	amplink run --recipe R.json [--out DIR] [--events E.tsv] FILE...
-//	amplink merge --out FILE [--groups G.csv] [--level L] RESULTS.csv...
+//	amplink merge --out FILE [--groups G.csv] [--level L] [--figures DIR] RESULTS.csv...
 //	amplink demo --out DIR
 //	amplink site --out DIR
 //	amplink serve [--addr 127.0.0.1:8080]
@@ -32,7 +32,7 @@ Usage:
         analyse recordings; writes DIR/results.csv, results.json, recipe.json,
         figures/*.svg and maps/*.csv
   amplink demo --out DIR     write the simulated demo recording and its recipe
-  amplink merge --out FILE [--groups G.csv] [--level L] RESULTS.csv...
+  amplink merge --out FILE [--groups G.csv] [--level L] [--figures DIR] RESULTS.csv...
         combine per-recording tables and add group rows
   amplink site --out DIR     write the static web site
   amplink serve [--addr A]   build the site and serve it on 127.0.0.1

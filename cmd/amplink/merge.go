@@ -35,6 +35,7 @@ func cmdMerge(stdout, stderr io.Writer, args []string) (err error) {
 	out := fs.String("out", "", "the merged table to write (CSV)")
 	groupsPath := fs.String("groups", "", "CSV with header recording,group: two groups to compare")
 	level := fs.Float64("level", 0.95, "coverage of the group intervals, in (0, 1)")
+	figDir := fs.String("figures", "", "also write the group figures (SVG) into this directory")
 	files, err := parseInterleaved(fs, args)
 	if err != nil {
 		return err
@@ -83,6 +84,16 @@ func cmdMerge(stdout, stderr io.Writer, args []string) (err error) {
 	var b bytes.Buffer
 	if err := report.WriteCSV(&b, all); err != nil {
 		return fmt.Errorf("merge: %w", err)
+	}
+	if *figDir != "" {
+		if err := os.MkdirAll(*figDir, 0o755); err != nil {
+			return fmt.Errorf("merge: %w", err)
+		}
+		for _, f := range report.GroupFigures(all.Rows) {
+			if err := os.WriteFile(filepath.Join(*figDir, f.Name+".svg"), []byte(f.SVG), 0o644); err != nil {
+				return fmt.Errorf("merge: %w", err)
+			}
+		}
 	}
 	if err := writeAtomic(*out, b.Bytes()); err != nil {
 		return fmt.Errorf("merge: %w", err)
