@@ -10,7 +10,6 @@ import (
 	"os"
 	"path/filepath"
 	"runtime/debug"
-	"strings"
 
 	"amplink/core/format"
 	_ "amplink/core/format/all"
@@ -224,12 +223,12 @@ func writeOutputs(dir string, res *report.Results) error {
 	}
 	for i := range res.Maps {
 		m := &res.Maps[i]
-		if err := write(filepath.Join("maps", safeName(m.Name)+".csv"), func(w io.Writer) error { return report.WriteMapCSV(w, m) }); err != nil {
+		if err := write(filepath.Join("maps", report.SafeName(m.Name, '_')+".csv"), func(w io.Writer) error { return report.WriteMapCSV(w, m) }); err != nil {
 			return err
 		}
 	}
 	for _, f := range res.Figures {
-		if err := write(filepath.Join("figures", safeName(f.Name)+".svg"), func(w io.Writer) error { _, err := io.WriteString(w, f.SVG); return err }); err != nil {
+		if err := write(filepath.Join("figures", report.SafeName(f.Name, '_')+".svg"), func(w io.Writer) error { _, err := io.WriteString(w, f.SVG); return err }); err != nil {
 			return err
 		}
 	}
@@ -260,14 +259,4 @@ func writeOutputs(dir string, res *report.Results) error {
 		}
 	}
 	return nil
-}
-
-func safeName(s string) string {
-	return strings.Map(func(r rune) rune {
-		switch {
-		case r >= 'a' && r <= 'z', r >= 'A' && r <= 'Z', r >= '0' && r <= '9', r == '-', r == '_', r == '.':
-			return r
-		}
-		return '_'
-	}, s)
 }

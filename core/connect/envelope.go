@@ -17,11 +17,10 @@ import (
 // the mean of the analytic wavelet outputs at the K grid frequencies of the
 // band. Its modulus |z_B| is the band's amplitude envelope and its argument
 // the band's phase. With one frequency it is that wavelet's analytic signal.
-// tmp is kept for callers that pass scratch space; it is returned unused.
-func BandSignal(dst, tmp []complex128, conv *spectral.Convolver, freqs []int, from, to int) (z, scratch []complex128) {
+func BandSignal(dst []complex128, conv *spectral.Convolver, freqs []int, from, to int) []complex128 {
 	// One inverse FFT with the band kernel (Convolver.BandAnalytic) gives
 	// the same mean as K single-wavelet transforms.
-	return conv.BandAnalytic(dst, freqs, from, to), tmp
+	return conv.BandAnalytic(dst, freqs, from, to)
 }
 
 // OrthAmp returns |Y⊥X| = |Im(y·x̄)|/|x| = |y|·|sin(φy − φx)|, the amplitude

@@ -47,7 +47,7 @@ func BenchmarkEnvelopeStream(b *testing.B) {
 		}
 		b.Run(name, func(b *testing.B) {
 			convs := map[int]*spectral.Convolver{}
-			var zx, zy, tmp []complex128
+			var zx, zy []complex128
 			var plain, xy, yx connect.Moments
 			run := func() {
 				plain, xy, yx = connect.Moments{}, connect.Moments{}, connect.Moments{}
@@ -65,9 +65,9 @@ func BenchmarkEnvelopeStream(b *testing.B) {
 						convs[nfft] = conv
 					}
 					conv.Load(x[lo:hi])
-					zx, tmp = connect.BandSignal(zx, tmp, conv, band, s-lo, e-lo)
+					zx = connect.BandSignal(zx, conv, band, s-lo, e-lo)
 					conv.Load(y[lo:hi])
-					zy, tmp = connect.BandSignal(zy, tmp, conv, band, s-lo, e-lo)
+					zy = connect.BandSignal(zy, conv, band, s-lo, e-lo)
 					for k := range zx {
 						ax, ay := math.Hypot(real(zx[k]), imag(zx[k])), math.Hypot(real(zy[k]), imag(zy[k]))
 						plain.Add(ax, ay)

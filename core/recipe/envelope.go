@@ -293,7 +293,6 @@ func (ep *envPlan) compute(ctx context.Context, p *Plan, seg int, span [2]int) (
 	m := span[1] - span[0]
 	nb := m / ep.bin
 	var za, zb [][]complex128
-	var tmp []complex128
 	convs := map[int]*spectral.Convolver{}
 	band := func(ch int, freqs []int) []complex128 {
 		x := ep.src.samples(seg, ch)
@@ -305,9 +304,7 @@ func (ep *envPlan) compute(ctx context.Context, p *Plan, seg int, span [2]int) (
 			convs[nfft] = c
 		}
 		c.Load(x[lo:hi])
-		var z []complex128
-		z, tmp = connect.BandSignal(nil, tmp, c, freqs, span[0]-lo, span[1]-lo)
-		return z
+		return connect.BandSignal(nil, c, freqs, span[0]-lo, span[1]-lo)
 	}
 	if ep.como {
 		// One series per frequency on the first (seed) and last (target) channel.

@@ -197,7 +197,7 @@ type figDraw struct {
 
 // add appends a figure, making its name a safe file name and unique.
 func (d *figDraw) add(name, title, svg string) {
-	name = safeName(name)
+	name = report.SafeName(name, '-')
 	if k := d.names[name]; k > 0 {
 		d.names[name] = k + 1
 		name += "-" + strconv.Itoa(k+1)
@@ -205,21 +205,6 @@ func (d *figDraw) add(name, title, svg string) {
 		d.names[name] = 1
 	}
 	d.out.Figures = append(d.out.Figures, report.Figure{Name: name, Title: title, SVG: svg})
-}
-
-// safeName keeps ASCII letters, digits, '-', '_' and '.', and replaces any
-// other character by '-'.
-func safeName(s string) string {
-	var b strings.Builder
-	for _, c := range s {
-		switch {
-		case c >= 'a' && c <= 'z', c >= 'A' && c <= 'Z', c >= '0' && c <= '9', c == '-', c == '_', c == '.':
-			b.WriteRune(c)
-		default:
-			b.WriteByte('-')
-		}
-	}
-	return b.String()
 }
 
 // drawFigures renders the figures of every analysis into out.Figures.
@@ -863,7 +848,6 @@ func (d *figDraw) envelopes(ep *envPlan) error {
 		return nil
 	}
 	ci, cj := ep.chans[pr.i], ep.chans[pr.j]
-	var tmp []complex128
 	convs := map[int]*spectral.Convolver{}
 	band := func(ch int, freqs []int) []complex128 {
 		x := ep.src.samples(seg, ch)
@@ -875,9 +859,7 @@ func (d *figDraw) envelopes(ep *envPlan) error {
 			convs[nfft] = c
 		}
 		c.Load(x[lo:hi])
-		var z []complex128
-		z, tmp = connect.BandSignal(nil, tmp, c, freqs, from-lo, to-lo)
-		return z
+		return connect.BandSignal(nil, c, freqs, from-lo, to-lo)
 	}
 	za := band(ci, ep.fa)
 	fbIdx := ep.fa

@@ -78,7 +78,7 @@ func GroupFigures(rows []Row) []Figure {
 		if t.id.Condition != "" {
 			name += "_" + t.id.Condition
 		}
-		out = append(out, Figure{Name: safe(name), Title: title, SVG: svg})
+		out = append(out, Figure{Name: SafeName(name, '_'), Title: title, SVG: svg})
 	}
 	return out
 }
@@ -102,12 +102,14 @@ func cell(r Row, name string) float64 {
 	return f
 }
 
-func safe(s string) string {
+// SafeName keeps ASCII letters, digits, '-', '_' and '.' of s and replaces
+// every other character by repl, so that s can name a file.
+func SafeName(s string, repl rune) string {
 	return strings.Map(func(r rune) rune {
 		switch {
 		case r >= 'a' && r <= 'z', r >= 'A' && r <= 'Z', r >= '0' && r <= '9', r == '-', r == '_', r == '.':
 			return r
 		}
-		return '_'
+		return repl
 	}, s)
 }
