@@ -12,6 +12,7 @@ import (
 
 	goapp "github.com/maxence-charriere/go-app/v9/pkg/app"
 
+	"amplink/wasm/startup"
 	"amplink/wasm/wire"
 )
 
@@ -286,6 +287,10 @@ func showSelection(x0, y0, x1, y1 float64, visible bool) {
 	st.Set("width", px(abs(x1-x0)))
 	st.Set("height", px(abs(y1-y0)))
 }
+
+// handBack ends the current main-thread task; the caller resumes in a later
+// one (see package startup).
+func handBack() { startup.Yield() }
 
 // markTime adds a performance mark (for timing the page in tests).
 func markTime(name string) {

@@ -49,7 +49,8 @@ func Handler(version string) *goapp.Handler {
 			SVG:        "/web/icon.svg",
 			AppleTouch: "/web/icon-192.png",
 		},
-		Styles: []string{"/web/app.css"},
+		Styles:  []string{"/web/app.css"},
+		Scripts: []string{"/web/start.js defer"},
 		CacheableResources: []string{
 			"/web/icon.svg",
 			"/web/worker.js",

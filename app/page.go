@@ -135,6 +135,9 @@ func (p *Page) reveal(ctx goapp.Context) {
 	p.later(p.reveal)
 }
 
+// started is set once the page's first OnInit has run.
+var started bool
+
 // OnInit sets the starting state (on the server too, for pre-rendering).
 func (p *Page) OnInit() {
 	p.form = NewForm()
@@ -142,6 +145,12 @@ func (p *Page) OnInit() {
 	p.stage = stages // the server draws the whole page at once
 	if goapp.IsClient {
 		p.stage = 1 // the browser, a step at a time (see advance)
+		if !started {
+			// go-app's own start-up (before this) and the first drawing
+			// (after) are then two tasks, not one
+			started = true
+			handBack()
+		}
 	}
 	p.stateAttr = "loading"
 	p.urls = map[string]string{}

@@ -57,7 +57,7 @@ func TestSiteFiles(t *testing.T) {
 	dir, st := testSite(t)
 	for _, name := range []string{
 		"index.html", "app.js", "app-worker.js", "manifest.webmanifest", "wasm_exec.js", "app.css",
-		"web/app.wasm", "web/worker.wasm", "web/worker.js", "web/wasm_exec.js", "web/app.css",
+		"web/app.wasm", "web/worker.wasm", "web/worker.js", "web/start.js", "web/wasm_exec.js", "web/app.css",
 		"web/icon.svg", "web/icon-192.png", "web/icon-512.png",
 	} {
 		t.Run(name, func(t *testing.T) {

@@ -5,17 +5,18 @@
 package main
 
 import (
-	"time"
-
 	goapp "github.com/maxence-charriere/go-app/v9/pkg/app"
 
 	"amplink/app"
+	"amplink/wasm/startup"
+	_ "amplink/wasm/startup/late"
 )
 
 func main() {
-	// Hand the event loop back once between the runtime's start-up and the
-	// page's: each is then its own main-thread task, not one long one.
-	time.Sleep(time.Millisecond)
+	// Each step of the start-up is a main-thread task of its own (see
+	// package startup): package start-up, then the routes, then go-app's
+	// start and the first drawing (the page yields again in OnInit).
+	startup.Yield()
 	app.Routes()
 	goapp.RunWhenOnBrowser()
 }
