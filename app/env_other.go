@@ -27,17 +27,16 @@ func (p *pool) restart()                                   {}
 func (p *pool) size() int                                  { return 0 }
 func (p *pool) send(int, wire.Request, []string, []handle) {}
 
-func readBuffers([]fileRef) ([]handle, error) { return nil, errNative }
-func readText(fileRef) (string, error)        { return "", errNative }
-func filesOf(goapp.Value) []fileRef           { return nil }
-func blobURL(string, string) string           { return "" }
-func bufferURL(buffer, string) string         { return "" }
-func revokeURL(string)                        {}
-func fragment() string                        { return "" }
-func setFragment(string) string               { return "" }
-func copyText(string)                         {}
-func nowMillis() float64                      { return 0 }
-func handBack()                               {}
+func readText(fileRef) (string, error) { return "", errNative }
+func filesOf(goapp.Value) []fileRef    { return nil }
+func blobURL(string, string) string    { return "" }
+func bufferURL(buffer, string) string  { return "" }
+func revokeURL(string)                 {}
+func fragment() string                 { return "" }
+func setFragment(string) string        { return "" }
+func copyText(string)                  {}
+func nowMillis() float64               { return 0 }
+func handBack()                        {}
 
 func plotGeometry() (geometry, [4]float64, bool)         { return geometry{}, [4]float64{}, false }
 func showSelection(x0, y0, x1, y1 float64, visible bool) {}

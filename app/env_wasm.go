@@ -95,7 +95,9 @@ func (p *pool) restart() {
 
 func (p *pool) size() int { return len(p.workers) }
 
-// send posts req with the given ArrayBuffers in the transfer list.
+// send posts req with the given files: Files (Blobs), which the worker
+// reads in slices and which posting does not copy, or ArrayBuffers, which
+// go in the transfer list.
 func (p *pool) send(k int, req wire.Request, names []string, bufs []js.Value) {
 	b, err := json.Marshal(req)
 	if err != nil {
@@ -109,9 +111,12 @@ func (p *pool) send(k int, req wire.Request, names []string, bufs []js.Value) {
 	}
 	arr := js.Global().Get("Array").New()
 	transfer := js.Global().Get("Array").New()
+	arrayBuffer := js.Global().Get("ArrayBuffer")
 	for _, buf := range bufs {
 		arr.Call("push", buf)
-		transfer.Call("push", buf)
+		if buf.InstanceOf(arrayBuffer) {
+			transfer.Call("push", buf)
+		}
 	}
 	msg.Set("names", ns)
 	msg.Set("bufs", arr)
@@ -143,20 +148,6 @@ func await(promise js.Value) (js.Value, error) {
 	then.Release()
 	catch.Release()
 	return r.v, r.err
-}
-
-// readBuffers reads each file into a fresh ArrayBuffer (one set per worker,
-// since transferring a buffer gives it away).
-func readBuffers(files []fileRef) ([]js.Value, error) {
-	out := make([]js.Value, len(files))
-	for i, f := range files {
-		v, err := await(f.h.Call("arrayBuffer"))
-		if err != nil {
-			return nil, errors.New(f.Name + ": could not be read: " + err.Error())
-		}
-		out[i] = v
-	}
-	return out, nil
 }
 
 func readText(f fileRef) (string, error) {

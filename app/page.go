@@ -408,29 +408,15 @@ func (p *Page) sources() (wire.Source, []fileRef) {
 	return src, files
 }
 
-// post reads the files afresh for one worker and sends req with them.
+// post sends req to worker k with the files themselves: a File is only a
+// handle (posting one copies no bytes), and the worker reads it in slices.
 func (p *Page) post(k int, req wire.Request, files []fileRef) {
 	names := make([]string, len(files))
+	handles := make([]handle, len(files))
 	for i, f := range files {
-		names[i] = f.Name
+		names[i], handles[i] = f.Name, f.h
 	}
-	if len(files) == 0 {
-		p.pool.send(k, req, nil, nil)
-		return
-	}
-	p.ctx.Async(func() {
-		bufs, err := readBuffers(files)
-		p.ctx.Dispatch(func(ctx goapp.Context) {
-			if req.Seq != p.seq && req.Seq != p.powerSeq {
-				return
-			}
-			if err != nil {
-				p.fail(err.Error())
-				return
-			}
-			p.pool.send(k, req, names, bufs)
-		})
-	})
+	p.pool.send(k, req, names, handles)
 }
 
 // ---- loading ----

@@ -28,6 +28,7 @@ import (
 	"github.com/chromedp/chromedp"
 
 	"amplink/core/demo"
+	"amplink/core/format"
 	"amplink/core/recipe"
 	"amplink/core/report"
 	"amplink/wasm/job"
@@ -739,7 +740,7 @@ func TestBrowser(t *testing.T) {
 		if len(pt.R) == 0 {
 			t.Fatal("no result rows")
 		}
-		compareNative(t, pt, nativeRun(t, []byte(trialsRecipe), wire.Source{Name: name}, job.Files{name: data}))
+		compareNative(t, pt, nativeRun(t, []byte(trialsRecipe), wire.Source{Name: name}, job.Files{name: format.Bytes(name, data)}))
 
 		// a recipe dropped on its own, with a recording open, runs at once
 		b.origin.setPhase("analysis")

@@ -6,6 +6,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"io"
 	"sort"
 	"time"
 
@@ -34,35 +35,46 @@ type Worker struct {
 	seq  int
 }
 
-// Files are the bytes that came with a request, by file name.
-type Files map[string][]byte
+// Files are the files that came with a request, by file name: bytes
+// transferred from the page, or readers over a picked File read in slices.
+type Files map[string]format.File
 
 // Open implements format.Siblings over the files handed to the worker.
 func (f Files) Open(name string) (format.File, error) {
-	b, ok := f[name]
+	file, ok := f[name]
 	if !ok {
 		return format.File{}, fmt.Errorf("%s: %w", name, format.ErrNoSibling)
 	}
-	return format.Bytes(name, b), nil
+	return file, nil
 }
 
-// Handle runs one request and posts its replies. bufs holds the bytes of
-// req.Source's files (data first, then events, then any sidecars, in the
-// order of names). Errors are posted as OpError replies naming the file or
-// recipe field; Handle itself never panics on data.
+// Handle is HandleFiles for files that came as bytes, named by names.
 func (w *Worker) Handle(ctx context.Context, req wire.Request, names []string, bufs [][]byte, post func(wire.Reply, [][]byte)) {
+	if len(names) != len(bufs) {
+		post(wire.Reply{Op: wire.OpError, Seq: req.Seq, Error: fmt.Sprintf("worker: %d file names for %d buffers", len(names), len(bufs))}, nil)
+		return
+	}
+	files := make([]format.File, len(names))
+	for i, n := range names {
+		files[i] = format.Bytes(n, bufs[i])
+	}
+	w.HandleFiles(ctx, req, files, post)
+}
+
+// HandleFiles runs one request and posts its replies. files are
+// req.Source's files (data first, then events, then any sidecars), or for
+// OpFinish every worker's unit results. Errors are posted as OpError
+// replies naming the file or recipe field; HandleFiles itself never panics
+// on data.
+func (w *Worker) HandleFiles(ctx context.Context, req wire.Request, list []format.File, post func(wire.Reply, [][]byte)) {
 	fail := func(err error) {
 		post(wire.Reply{Op: wire.OpError, Seq: req.Seq, Error: err.Error()}, nil)
 	}
-	if len(names) != len(bufs) {
-		fail(fmt.Errorf("worker: %d file names for %d buffers", len(names), len(bufs)))
-		return
-	}
 	files := Files{}
 	var total int64
-	for i, n := range names {
-		files[n] = bufs[i]
-		total += int64(len(bufs[i]))
+	for _, f := range list {
+		files[f.Name] = f
+		total += f.Size
 	}
 	if total > MaxBytes {
 		fail(fmt.Errorf("%s: %d MiB of files is more than the %d MiB one worker can hold", req.Source.Name, total>>20, MaxBytes>>20))
@@ -121,7 +133,12 @@ func (w *Worker) Handle(ctx context.Context, req wire.Request, names []string, b
 			return
 		}
 		var all []recipe.UnitResult
-		for i, b := range bufs {
+		for i, f := range list {
+			b, err := io.ReadAll(io.NewSectionReader(f.R, 0, f.Size))
+			if err != nil {
+				fail(fmt.Errorf("worker: units from worker %d: %w", i, err))
+				return
+			}
 			u, err := DecodeUnits(b)
 			if err != nil {
 				fail(fmt.Errorf("worker: units from worker %d: %w", i, err))
@@ -202,20 +219,19 @@ func Open(r *recipe.Recipe, src wire.Source, files Files) (*recipe.Dataset, erro
 	if src.Demo {
 		return demoDataset(r)
 	}
-	b, ok := files[src.Name]
+	f, ok := files[src.Name]
 	if !ok {
 		return nil, fmt.Errorf("worker: no bytes for %q", src.Name)
 	}
 	var ev *format.File
 	if src.EventsName != "" {
-		eb, ok := files[src.EventsName]
+		e, ok := files[src.EventsName]
 		if !ok {
 			return nil, fmt.Errorf("worker: no bytes for %q", src.EventsName)
 		}
-		f := format.Bytes(src.EventsName, eb)
-		ev = &f
+		ev = &e
 	}
-	return recipe.Open(r, format.Bytes(src.Name, b), ev, files)
+	return recipe.Open(r, f, ev, files)
 }
 
 // Assign splits units over n workers: longest first onto the least loaded

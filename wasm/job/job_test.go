@@ -14,6 +14,7 @@ import (
 	"testing"
 
 	"amplink/core/demo"
+	"amplink/core/format"
 	"amplink/core/recipe"
 	"amplink/core/report"
 	"amplink/wasm/wire"
@@ -201,7 +202,7 @@ func TestSplitEqualsRun(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	ds, err := Open(r, src, Files{"trials.csv": data})
+	ds, err := Open(r, src, Files{"trials.csv": format.Bytes("trials.csv", data)})
 	if err != nil {
 		t.Fatal(err)
 	}

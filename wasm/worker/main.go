@@ -5,24 +5,49 @@
 // reads {json, names, bufs} messages, runs them through package job, and
 // posts {json, bufs} replies with every ArrayBuffer in the transfer list.
 //
-// The onmessage callback never blocks: it copies the bytes out of the JS
-// buffers and starts a goroutine; requests run one at a time in arrival
+// A message's files are ArrayBuffers (copied into Go at once) or Files
+// (read later in slices, see blobFile). The onmessage callback never
+// blocks: it queues the request, and requests run one at a time in arrival
 // order.
 package main
 
 import (
 	"context"
 	"encoding/json"
+	"fmt"
 	"syscall/js"
 
+	"amplink/core/format"
 	"amplink/wasm/job"
 	"amplink/wasm/wire"
 )
 
 type message struct {
 	req   wire.Request
-	names []string
-	bufs  [][]byte
+	files []format.File
+}
+
+// blobFile reads a File (or any Blob) the page posted a slice at a time
+// with FileReaderSync, which dedicated workers have: the file is never
+// copied whole, into JS or into Go.
+func blobFile(name string, blob js.Value) format.File {
+	reader := js.Global().Get("FileReaderSync").New()
+	r := &job.SliceReader{Name: name, Size: int64(blob.Get("size").Float())}
+	r.Fetch = func(p []byte, off int64) (err error) {
+		defer func() {
+			if e := recover(); e != nil {
+				err = fmt.Errorf("%v", e) // a js.Error: NotReadableError and the like
+			}
+		}()
+		part := blob.Call("slice", float64(off), float64(off)+float64(len(p)))
+		u8 := js.Global().Get("Uint8Array").New(reader.Call("readAsArrayBuffer", part))
+		if u8.Length() != len(p) {
+			return job.ErrShort
+		}
+		js.CopyBytesToGo(p, u8)
+		return nil
+	}
+	return format.File{Name: name, R: r, Size: r.Size}
 }
 
 func main() {
@@ -55,18 +80,26 @@ func main() {
 			post(wire.Reply{Op: wire.OpError, Error: "worker: bad request: " + err.Error()}, nil)
 			return nil
 		}
-		if names := data.Get("names"); names.Truthy() {
-			for i := 0; i < names.Length(); i++ {
-				m.names = append(m.names, names.Index(i).String())
-			}
+		names, bufs := data.Get("names"), data.Get("bufs")
+		n := 0
+		if bufs.Truthy() {
+			n = bufs.Length()
 		}
-		if bufs := data.Get("bufs"); bufs.Truthy() {
-			for i := 0; i < bufs.Length(); i++ {
-				u8 := js.Global().Get("Uint8Array").New(bufs.Index(i))
-				b := make([]byte, u8.Length())
-				js.CopyBytesToGo(b, u8)
-				m.bufs = append(m.bufs, b)
+		if !names.Truthy() && n > 0 || names.Truthy() && names.Length() != n {
+			post(wire.Reply{Op: wire.OpError, Seq: m.req.Seq, Error: "worker: file names and files do not match"}, nil)
+			return nil
+		}
+		blob := js.Global().Get("Blob")
+		for i := 0; i < n; i++ {
+			name, b := names.Index(i).String(), bufs.Index(i)
+			if b.InstanceOf(blob) {
+				m.files = append(m.files, blobFile(name, b))
+				continue
 			}
+			u8 := js.Global().Get("Uint8Array").New(b)
+			c := make([]byte, u8.Length())
+			js.CopyBytesToGo(c, u8)
+			m.files = append(m.files, format.Bytes(name, c))
 		}
 		queue <- m
 		return nil
@@ -77,6 +110,6 @@ func main() {
 	}
 	var w job.Worker
 	for m := range queue {
-		w.Handle(context.Background(), m.req, m.names, m.bufs, post)
+		w.HandleFiles(context.Background(), m.req, m.files, post)
 	}
 }
