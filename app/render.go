@@ -7,6 +7,7 @@ import (
 	goapp "github.com/maxence-charriere/go-app/v9/pkg/app"
 
 	"amplink/core/recipe"
+	"amplink/wasm/wire"
 )
 
 // Render draws the page: five numbered steps, top to bottom.
@@ -121,6 +122,10 @@ func step(n int, title string, body ...goapp.UI) goapp.UI {
 
 // ---- 1: open a recording ----
 
+// capacityText says what the page can hold (a worker's memory is limited;
+// see wire.MaxBytes and data.MaxSampleBytes).
+var capacityText = fmt.Sprintf("The page holds recordings of up to %d MiB of samples (about 270 million, e.g. 64 channels for 70 minutes at 1 kHz) and files of up to %d MiB. For larger ones, use the command-line tool.", wire.MaxBytes>>20, wire.MaxBytes>>20)
+
 func (p *Page) renderLoad() goapp.UI {
 	return step(1, "Open a recording",
 		goapp.Div().Class("dropzone").OnDragOver(p.onDragOver).OnDrop(p.onDrop).Body(
@@ -132,6 +137,7 @@ func (p *Page) renderLoad() goapp.UI {
 				goapp.Button().ID("load-demo").Class("quiet").Text("Load the demo").OnClick(p.onLoadDemo),
 			),
 			goapp.P().Class("hint").Text("Dropping a recipe .json fills in every setting; with a recording open, it runs the same analysis on it."),
+			goapp.P().Class("hint").ID("capacity").Text(capacityText),
 		),
 		goapp.If(p.loading, goapp.P().Text(p.loadMsg)),
 		goapp.If(p.loadErr != "", goapp.P().Class("error").Aria("live", "assertive").Text(p.loadErr)),

@@ -110,6 +110,7 @@ func TestPagePrerendered(t *testing.T) {
 			"not a diagnostic device",
 			"institution",
 			"nothing is uploaded",
+			"The page holds recordings of up to 1024 MiB of samples", // what it can hold, before a file is picked
 		} {
 			if !strings.Contains(s, want) {
 				t.Errorf("the page does not say %q", want)

@@ -64,6 +64,9 @@ func Epoch(r *Recording, events []Event, eventType string, start, end float64) (
 	if len(keep) == 0 {
 		return nil, fmt.Errorf("epochs: all %d %q epochs of %s run past the recording", matched, eventType, r.Name)
 	}
+	if err := CheckSamples(int64(len(keep)) * int64(len(r.Channels)) * int64(ns)); err != nil {
+		return nil, fmt.Errorf("epochs: %d epochs of %s: %w", len(keep), r.Name, err)
+	}
 	ep := NewEpochs(r.Rate, float64(s0)/r.Rate, r.Channels, len(keep), ns)
 	ep.Name, ep.Format = r.Name, r.Format
 	ep.TrialInfo = keep

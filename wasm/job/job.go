@@ -10,6 +10,7 @@ import (
 	"sort"
 	"time"
 
+	"amplink/core/data"
 	"amplink/core/demo"
 	"amplink/core/format"
 	_ "amplink/core/format/all" // every reader
@@ -231,7 +232,11 @@ func Open(r *recipe.Recipe, src wire.Source, files Files) (*recipe.Dataset, erro
 		}
 		ev = &e
 	}
-	return recipe.Open(r, f, ev, files)
+	ds, err := recipe.Open(r, f, ev, files)
+	if errors.Is(err, data.ErrTooLarge) {
+		err = fmt.Errorf("%w. The page's workers hold at most %d MiB of samples each; the command-line tool (amplink run) has no such limit", err, data.MaxSampleBytes>>20)
+	}
+	return ds, err
 }
 
 // Assign splits units over n workers: longest first onto the least loaded

@@ -13,6 +13,7 @@ import (
 	"strings"
 	"testing"
 
+	"amplink/core/data"
 	"amplink/core/demo"
 	"amplink/core/format"
 	"amplink/core/recipe"
@@ -328,6 +329,22 @@ func TestPower(t *testing.T) {
 	for _, want := range []string{"<svg", `id="plot-area"`, `data-xmin="`, `data-ylog="true"`, "beta-to-delta seed"} {
 		if !strings.Contains(fig.SVG, want) {
 			t.Errorf("power SVG lacks %s", want)
+		}
+	}
+}
+
+// TestTooLarge: a recording beyond the worker's sample budget is refused
+// with a message that says what the page holds and where to go instead.
+func TestTooLarge(t *testing.T) {
+	defer func(v int64) { data.MaxSampleBytes = v }(data.MaxSampleBytes)
+	data.MaxSampleBytes = 4096
+	var w Worker
+	var rp replies
+	w.Handle(context.Background(), wire.Request{Op: wire.OpDescribe, Source: wire.Source{Name: "trials.csv"}}, []string{"trials.csv"}, [][]byte{trialsCSV()}, rp.post)
+	rep, _ := rp.last(t, wire.OpError)
+	for _, want := range []string{"trials.csv", "as float32", "amplink run"} {
+		if !strings.Contains(rep.Error, want) {
+			t.Errorf("error %q lacks %q", rep.Error, want)
 		}
 	}
 }

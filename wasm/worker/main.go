@@ -17,6 +17,7 @@ import (
 	"fmt"
 	"syscall/js"
 
+	"amplink/core/data"
 	"amplink/core/format"
 	"amplink/wasm/job"
 	"amplink/wasm/wire"
@@ -51,6 +52,9 @@ func blobFile(name string, blob js.Value) format.File {
 }
 
 func main() {
+	// a worker's memory is limited: readers refuse larger recordings
+	// before allocating, with a message saying so
+	data.MaxSampleBytes = wire.MaxBytes
 	queue := make(chan message, 64)
 	self := js.Global()
 	post := func(rep wire.Reply, bufs [][]byte) {

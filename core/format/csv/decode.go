@@ -274,9 +274,17 @@ func (d *decoder) continuous() (*format.Data, error) {
 		}
 		prev, last = t, line
 		k++
+		if k&4095 == 0 {
+			if err := data.CheckSamples(int64(k) * int64(nch)); err != nil {
+				return nil, d.r.Errorf(line, 0, data.ErrTooLarge, "%v", err)
+			}
+		}
 	}
 	if k == 0 {
 		return nil, d.noRows()
+	}
+	if err := data.CheckSamples(int64(k) * int64(nch)); err != nil {
+		return nil, d.r.Errorf(last, 0, data.ErrTooLarge, "%v", err)
 	}
 	rate, err := d.rate(k, t0, prev, last)
 	if err != nil {
@@ -363,6 +371,9 @@ func (d *decoder) epochs() (*format.Data, error) {
 				t0 = t
 				bufs = make([][]float32, nch)
 			} else {
+				if err := data.CheckSamples(int64(len(vals) + nch*ns)); err != nil {
+					return nil, d.r.Errorf(line, 0, data.ErrTooLarge, "%v", err)
+				}
 				vals = slices.Grow(vals, nch*ns)[:len(vals)+nch*ns]
 			}
 			k = 0

@@ -106,8 +106,12 @@ func Decode(f format.File) (*data.Recording, *Header, error) {
 		}
 	}
 
-	// Allocate the samples: bounded by the file size (≥ 2 bytes per sample).
+	// Allocate the samples: bounded by the file size (≥ 2 bytes per sample)
+	// and by data.MaxSampleBytes where that is set.
 	total := h.Records * int64(spr)
+	if err := data.CheckSamples(int64(len(kept)) * total); err != nil {
+		return nil, nil, p.errf(h.HeaderBytes, "data records", data.ErrTooLarge, "%d signals × %d samples: %v", len(kept), total, err)
+	}
 	rec.Samples = make([][]float32, len(kept))
 	for i := range kept {
 		rec.Samples[i] = make([]float32, total)
