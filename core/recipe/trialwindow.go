@@ -113,18 +113,31 @@ func (tw *twPlan) finish(ctx context.Context, p *Plan, res []UnitResult, out *re
 	spearman := a.Method == "spearman"
 	var rows []report.Row
 	var ps []float64
+	// Spearman ranks each window's powers once, not once per pair (ranking
+	// ranks changes nothing, so every result is as from the raw powers)
+	ranked := spearman && a.Conditions == nil
+	ys := make([][]float64, len(tw.targets))
+	for j, t := range tw.targets {
+		ys[j] = tw.values(res, t)
+		if ranked {
+			ys[j] = stats.Ranks(nil, ys[j])
+		}
+	}
 	for _, s := range tw.seeds {
 		x := tw.values(res, s)
-		for _, t := range tw.targets {
+		if ranked {
+			x = stats.Ranks(nil, x)
+		}
+		for j, t := range tw.targets {
 			if err := ctx.Err(); err != nil {
 				return err
 			}
-			y := tw.values(res, t)
+			y := ys[j]
 			var rs []report.Row
 			if a.Conditions != nil {
 				rs = tw.compareConditions(a, x, y, spearman)
 			} else {
-				row := correlate(a, x, y, tw.covs, spearman)
+				row := correlate(a, x, y, tw.covs, spearman, ranked)
 				if tw.excluded > 0 {
 					setField(&row, "note", joinNote(field(row, "note"), fmt.Sprintf("%d trials left out for a missing covariate", tw.excluded)))
 				}
@@ -156,8 +169,10 @@ func windowFields(tw *twPlan) []report.Field {
 // partial on covs (one slice per covariate, aligned with x) when there are
 // any: the df then drop by one per covariate, the permutation p shuffles the
 // residuals of x and y after regressing out the covariates (ranks first for
-// Spearman), and the interval uses n − k in place of n.
-func correlate(a *Analysis, x, y []float64, covs [][]float64, spearman bool) report.Row {
+// Spearman), and the interval uses n − k in place of n. ranked says x and
+// y are already average ranks (Spearman only), which are then not ranked
+// again for r.
+func correlate(a *Analysis, x, y []float64, covs [][]float64, spearman, ranked bool) report.Row {
 	n := len(x)
 	k := len(covs)
 	row := report.Row{Analysis: a.ID, Type: a.Type, Method: a.Method, N: n, R: math.NaN(), P: math.NaN()}
@@ -166,6 +181,8 @@ func correlate(a *Analysis, x, y []float64, covs [][]float64, spearman bool) rep
 	switch {
 	case k > 0:
 		r, df = stats.Partial(x, y, covs, spearman)
+	case spearman && ranked:
+		r = stats.Pearson(x, y) // x and y are already average ranks
 	case spearman:
 		r = stats.Spearman(x, y)
 	default:
@@ -356,7 +373,7 @@ func (tw *twPlan) compareConditions(a *Analysis, x, y []float64, spearman bool) 
 	k := len(a.Covariates)
 	for l := range 2 {
 		idx := tw.conds[l]
-		row := correlate(a, pick(x, idx), pick(y, idx), pickCovs(tw.covs, idx), spearman)
+		row := correlate(a, pick(x, idx), pick(y, idx), pickCovs(tw.covs, idx), spearman, false)
 		setField(&row, "condition", a.Conditions.Compare[l])
 		rs[l], ns[l] = row.R, row.N
 		rows = append(rows, row)

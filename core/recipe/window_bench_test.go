@@ -3,10 +3,12 @@ package recipe_test
 import (
 	"context"
 	"fmt"
+	"io"
 	"testing"
 
 	"amplink/cmd/amplink-workload/workload"
 	"amplink/core/recipe"
+	"amplink/core/report"
 )
 
 // BenchmarkStandardWindow runs the standard trial-window workload
@@ -68,6 +70,39 @@ func BenchmarkStandardWindow(b *testing.B) {
 				}
 				b.ReportMetric(perOp*float64(b.N)/b.Elapsed().Seconds(), "trialchans/s")
 			})
+		}
+	}
+}
+
+// BenchmarkStandardFinish is the combining step of the standard workload
+// (32 × 32 Spearman pairs over 200 trials from the units' window powers,
+// then results.csv and results.json), which the page runs on one worker
+// after the others have sent their units.
+func BenchmarkStandardFinish(b *testing.B) {
+	rc, err := recipe.Parse([]byte(workload.StdRecipe))
+	if err != nil {
+		b.Fatal(err)
+	}
+	ds := &recipe.Dataset{Name: "workload.f32", Format: "f32", Epochs: workload.Epochs(workload.StdTrials, 1)}
+	p, err := recipe.NewPlan(rc, ds)
+	if err != nil {
+		b.Fatal(err)
+	}
+	units, err := p.ComputeAll(context.Background(), 2, nil)
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.ReportAllocs()
+	for b.Loop() {
+		res, err := p.Finish(context.Background(), units)
+		if err != nil {
+			b.Fatal(err)
+		}
+		if err := report.WriteCSV(io.Discard, res); err != nil {
+			b.Fatal(err)
+		}
+		if err := report.WriteJSON(io.Discard, res); err != nil {
+			b.Fatal(err)
 		}
 	}
 }

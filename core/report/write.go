@@ -1,11 +1,12 @@
 package report
 
 import (
+	"bytes"
 	"encoding/csv"
 	"encoding/json"
 	"io"
 	"math"
-	"regexp"
+	"sort"
 	"strconv"
 )
 
@@ -122,12 +123,47 @@ func WriteMapCSV(w io.Writer, m *Map) error {
 	return cw.Error()
 }
 
-// jsonNumber is the JSON number grammar (RFC 8259 section 6).
-var jsonNumber = regexp.MustCompile(`^-?(0|[1-9][0-9]*)(\.[0-9]+)?([eE][+-]?[0-9]+)?$`)
+// isJSONNumber reports whether s follows the JSON number grammar (RFC 8259
+// section 6): -?(0|[1-9][0-9]*)(\.[0-9]+)?([eE][+-]?[0-9]+)?
+func isJSONNumber(s string) bool {
+	i := 0
+	digits := func() int {
+		j := i
+		for i < len(s) && s[i] >= '0' && s[i] <= '9' {
+			i++
+		}
+		return i - j
+	}
+	if i < len(s) && s[i] == '-' {
+		i++
+	}
+	switch {
+	case i < len(s) && s[i] == '0':
+		i++
+	case digits() == 0:
+		return false
+	}
+	if i < len(s) && s[i] == '.' {
+		i++
+		if digits() == 0 {
+			return false
+		}
+	}
+	if i < len(s) && (s[i] == 'e' || s[i] == 'E') {
+		i++
+		if i < len(s) && (s[i] == '+' || s[i] == '-') {
+			i++
+		}
+		if digits() == 0 {
+			return false
+		}
+	}
+	return i == len(s)
+}
 
 type jsonOut struct {
 	Columns  []string            `json:"columns"`
-	Rows     []map[string]any    `json:"rows"`
+	Rows     []json.RawMessage   `json:"rows"`
 	Maps     []string            `json:"maps"`
 	Figures  []map[string]string `json:"figures"`
 	Warnings []string            `json:"warnings"`
@@ -139,25 +175,46 @@ type jsonOut struct {
 // warnings and the resolved recipe.
 func WriteJSON(w io.Writer, res *Results) error {
 	header, cells := res.Table()
-	out := jsonOut{Columns: header, Rows: []map[string]any{}, Maps: []string{}, Figures: []map[string]string{}, Warnings: res.Warnings}
+	out := jsonOut{Columns: header, Rows: []json.RawMessage{}, Maps: []string{}, Figures: []map[string]string{}, Warnings: res.Warnings}
 	if out.Warnings == nil {
 		out.Warnings = []string{}
 	}
+	// Each row is an object whose keys come in name order (as encoding/json
+	// writes a map), written directly rather than through a map per row.
+	last := map[string]int{}
+	for i, c := range header {
+		last[c] = i
+	}
+	keys := make([]string, 0, len(last))
+	for c := range last {
+		keys = append(keys, c)
+	}
+	sort.Strings(keys)
+	quoted := make([][]byte, len(keys))
+	for k, c := range keys {
+		quoted[k], _ = json.Marshal(c)
+	}
+	var b []byte
 	for _, row := range cells {
-		m := make(map[string]any, len(header))
-		for i, c := range header {
-			v := row[i]
-			if v == "" {
-				m[c] = nil
-				continue
+		b = append(b[:0], '{')
+		for k, c := range keys {
+			if k > 0 {
+				b = append(b, ',')
 			}
-			if jsonNumber.MatchString(v) && c != "seed" && c != "target" && c != "analysis" && c != "recording" {
-				m[c] = json.Number(v)
-				continue
+			b = append(append(b, quoted[k]...), ':')
+			v := row[last[c]]
+			switch {
+			case v == "":
+				b = append(b, "null"...)
+			case isJSONNumber(v) && c != "seed" && c != "target" && c != "analysis" && c != "recording":
+				b = append(b, v...)
+			default:
+				q, _ := json.Marshal(v)
+				b = append(b, q...)
 			}
-			m[c] = v
 		}
-		out.Rows = append(out.Rows, m)
+		b = append(b, '}')
+		out.Rows = append(out.Rows, json.RawMessage(bytes.Clone(b)))
 	}
 	for _, m := range res.Maps {
 		out.Maps = append(out.Maps, m.Name)

@@ -402,3 +402,22 @@ func TestWriteErrors(t *testing.T) {
 		})
 	}
 }
+
+// TestIsJSONNumber checks the number grammar of RFC 8259 section 6, which
+// decides whether a cell is written as a JSON number or a string.
+func TestIsJSONNumber(t *testing.T) {
+	for _, c := range []struct {
+		s    string
+		want bool
+	}{
+		{"0", true}, {"-0", true}, {"12", true}, {"0.5", true}, {"-3.25", true},
+		{"1e5", true}, {"1E-7", true}, {"2.5e+10", true}, {"-0.0e0", true},
+		{"", false}, {"-", false}, {"01", false}, {".5", false}, {"5.", false},
+		{"1e", false}, {"1e+", false}, {"+1", false}, {"NaN", false}, {"Inf", false},
+		{"1.2.3", false}, {"0x10", false}, {"12a", false}, {" 1", false}, {"C4", false},
+	} {
+		if got := isJSONNumber(c.s); got != c.want {
+			t.Errorf("isJSONNumber(%q) = %v, want %v", c.s, got, c.want)
+		}
+	}
+}
