@@ -431,3 +431,50 @@ func TestFragmentFromZlib(t *testing.T) {
 		t.Fatal("the zlib-made link does not decode to the recipe")
 	}
 }
+
+// TestRowsHTML: the cells are escaped, so a channel or note holding markup
+// shows as text and cannot add elements to the page.
+func TestRowsHTML(t *testing.T) {
+	got := RowsHTML([][]string{{"a1", "C4", "<img src=x onerror=alert(1)>"}, {"b&c", `"q"`, ""}})
+	want := `<tr><td>a1</td><td>C4</td><td>&lt;img src=x onerror=alert(1)&gt;</td></tr>` +
+		`<tr><td>b&amp;c</td><td>&#34;q&#34;</td><td></td></tr>`
+	if got != want {
+		t.Fatalf("RowsHTML:\n%s\nwant\n%s", got, want)
+	}
+	if RowsHTML(nil) != "" {
+		t.Error("no rows should give no text")
+	}
+}
+
+// TestFormFigures: the figures setting survives the form both ways, and
+// the recipe the form writes draws figures exactly when the recipe it was
+// filled from did (the default draws them).
+func TestFormFigures(t *testing.T) {
+	const tw = `"analyses": [{"type": "trial-window", "seed": {"channel": "C4", "time": [-0.5, 0], "freq": [15, 25]}, "target": {"channel": "Pz", "time": [0.2, 0.6], "freq": [2, 4]}}]`
+	for _, c := range []struct {
+		in    string
+		draw  bool
+		scale string
+	}{
+		{`{` + tw + `}`, true, "log"},
+		{`{"figures": true, ` + tw + `}`, true, "log"},
+		{`{"figures": false, ` + tw + `}`, false, "log"},
+		{`{"figures": {"enabled": false}, ` + tw + `}`, false, "log"},
+		{`{"figures": {"powerScale": "linear"}, ` + tw + `}`, true, "linear"},
+	} {
+		f, err := FormFromJSON([]byte(c.in))
+		if err != nil {
+			t.Fatal(err)
+		}
+		r, err := recipe.Parse(f.JSON())
+		if err != nil {
+			t.Fatalf("%s: %v", c.in, err)
+		}
+		if r.Figures.Enabled != c.draw || r.Figures.PowerScale != c.scale {
+			t.Errorf("%s: the form's recipe has figures %+v, want enabled %v, scale %s", c.in, r.Figures, c.draw, c.scale)
+		}
+	}
+	if r, err := recipe.Parse(NewForm().JSON()); err == nil && !r.Figures.Enabled {
+		t.Error("a new form does not draw figures")
+	}
+}

@@ -37,6 +37,9 @@ func setFragment(string) string        { return "" }
 func copyText(string)                  {}
 func nowMillis() float64               { return 0 }
 func handBack()                        {}
+func bodyRows(string) int              { return 0 }
+func setBodyHTML(string, string)       {}
+func appendBodyHTML(string, string)    {}
 
 func plotGeometry() (geometry, [4]float64, bool)         { return geometry{}, [4]float64{}, false }
 func showSelection(x0, y0, x1, y1 float64, visible bool) {}

@@ -279,6 +279,30 @@ func showSelection(x0, y0, x1, y1 float64, visible bool) {
 	st.Set("height", px(abs(y1-y0)))
 }
 
+// bodyRows is the number of rows in the table body with the given id, or
+// −1 when there is none.
+func bodyRows(id string) int {
+	el := js.Global().Get("document").Call("getElementById", id)
+	if !el.Truthy() {
+		return -1
+	}
+	return el.Get("rows").Length()
+}
+
+// setBodyHTML replaces the contents of the element with the given id.
+func setBodyHTML(id, html string) {
+	if el := js.Global().Get("document").Call("getElementById", id); el.Truthy() {
+		el.Set("innerHTML", html)
+	}
+}
+
+// appendBodyHTML parses html at the end of the element with the given id.
+func appendBodyHTML(id, html string) {
+	if el := js.Global().Get("document").Call("getElementById", id); el.Truthy() {
+		el.Call("insertAdjacentHTML", "beforeend", html)
+	}
+}
+
 // handBack ends the current main-thread task; the caller resumes in a later
 // one (see package startup).
 func handBack() { startup.Yield() }

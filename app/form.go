@@ -51,7 +51,15 @@ var topFields = []field{
 	{Key: "spectral.spacing", Kind: kChoice, Label: "Spacing", Choices: []string{"log", "linear"}},
 	{Key: "spectral.cycles.0", Kind: kNum, Label: "Cycles at lowest"},
 	{Key: "spectral.cycles.1", Kind: kNum, Label: "Cycles at highest"},
+	{Key: "figures.draw", Kind: kBool, Label: "Draw figures (off is faster for large tables)"},
+	{Key: "figures.powerScale", Kind: kChoice, Label: "Power colour scale", Choices: []string{"log", "linear"}},
 }
+
+// Where topFields' groups start: epochs, spectral settings, figures.
+const (
+	topSpectral = 4
+	topFigures  = 10
+)
 
 var (
 	windowTypes   = []string{recipe.TypeTrialWindow, recipe.TypeTFMap}
@@ -112,7 +120,7 @@ type Form struct {
 
 // NewForm returns an empty form with one trial-window analysis.
 func NewForm() *Form {
-	return &Form{Values: map[string]string{"analyses.0.type": recipe.TypeTrialWindow}, Analyses: 1}
+	return &Form{Values: map[string]string{"analyses.0.type": recipe.TypeTrialWindow, "figures.draw": "on"}, Analyses: 1}
 }
 
 func (f *Form) get(k string) string { return f.Values[k] }
@@ -177,6 +185,12 @@ func (f *Form) JSON() []byte {
 		}
 	}
 	top["spectral"] = sp
+	switch scale := f.get("figures.powerScale"); {
+	case f.get("figures.draw") == "":
+		top["figures"] = false
+	case scale != "":
+		top["figures"] = map[string]any{"powerScale": scale}
+	}
 	list := make([]any, 0, f.Analyses)
 	for i := 0; i < f.Analyses; i++ {
 		pre := fmt.Sprintf("analyses.%d.", i)
@@ -305,6 +319,22 @@ func FormFromJSON(b []byte) (*Form, error) {
 		return nil, ErrNotRecipe
 	}
 	f := &Form{Values: map[string]string{}, Analyses: len(list)}
+	// figures: absent or true draws them, false or {"enabled": false} not
+	switch fg := top["figures"].(type) {
+	case bool:
+		if fg {
+			f.set("figures.draw", "on")
+		}
+	case map[string]any:
+		if en, ok := fg["enabled"].(bool); !ok || en {
+			f.set("figures.draw", "on")
+		}
+		if sc, ok := fg["powerScale"].(string); ok {
+			f.set("figures.powerScale", sc)
+		}
+	default:
+		f.set("figures.draw", "on")
+	}
 	if ep, ok := top["epochs"].(map[string]any); ok {
 		f.set("epochs.enabled", "on")
 		for _, k := range []string{"event", "start", "end"} {

@@ -84,8 +84,10 @@ type Page struct {
 	// progressive drawing: how many steps of the page, result rows and
 	// figures are drawn so far (each addition is its own short task)
 	stage      int
-	shownRows  int
+	shownRows  int        // rows written into the table body (see RowsHTML)
+	sorted     [][]string // the rows in the current sort order; nil until needed
 	shownFigs  int
+	drawing    bool // reveal is scheduled
 	resultsRev int
 	figBufs    []buffer // the figures' SVG, made into Blobs as they are shown
 }
@@ -94,8 +96,8 @@ type Page struct {
 // and long result tables and figures a slice at a time, so that no single
 // main-thread task grows long (the page must answer within 200 ms).
 const (
-	stages      = 5
-	rowsPerTick = 5
+	stages      = 6
+	rowsPerTick = 100
 	revealDelay = 4 * time.Millisecond
 )
 
@@ -122,14 +124,27 @@ func (p *Page) advance(ctx goapp.Context) {
 func (p *Page) reveal(ctx goapp.Context) {
 	switch {
 	case p.shownRows < len(p.table.Rows):
-		p.shownRows = min(len(p.table.Rows), p.shownRows+rowsPerTick)
+		if p.sorted == nil {
+			p.sorted = p.table.Sorted(p.sortCol, p.sortDesc)
+		}
+		if bodyRows(resultsBody) != p.shownRows {
+			// the body is not what was written to it (redrawn, or a sort
+			// started over): write it afresh
+			setBodyHTML(resultsBody, "")
+			p.shownRows = 0
+		}
+		end := min(len(p.sorted), p.shownRows+rowsPerTick)
+		appendBodyHTML(resultsBody, RowsHTML(p.sorted[p.shownRows:end]))
+		p.shownRows = end
 	case p.shownFigs < len(p.figures):
 		if p.shownFigs < len(p.figBufs) {
 			p.urls[p.figures[p.shownFigs].Name+".svg"] = bufferURL(p.figBufs[p.shownFigs], "image/svg+xml")
 		}
 		p.shownFigs++
 	default:
+		p.drawing = false
 		p.stateAttr = "done"
+		markTime("amplink-done")
 		return
 	}
 	p.later(p.reveal)
@@ -308,7 +323,7 @@ func (p *Page) finishRun(rep wire.Reply, bufs []buffer) {
 		p.stateAttr = "identity-done"
 		return
 	}
-	p.table = t
+	p.table, p.sorted = t, nil
 	p.sortCol, p.sortDesc = -1, false
 	p.figures = rep.Figures
 	p.warnings = rep.Warnings
@@ -332,6 +347,7 @@ func (p *Page) finishRun(rep wire.Reply, bufs []buffer) {
 			p.figBufs = bufs[1:]
 		}
 		p.resultsRev++
+		p.drawing = true
 		p.later(p.reveal)
 	})
 }
@@ -438,7 +454,8 @@ func (p *Page) resetRecording() {
 	p.data, p.events, p.extras, p.demo = nil, nil, nil, false
 	p.summary, p.loadErr, p.loadMsg = nil, "", ""
 	p.powerSVG, p.powerErr, p.powerChan = "", "", ""
-	p.table = Table{}
+	p.table, p.sorted, p.shownRows = Table{}, nil, 0
+	setBodyHTML(resultsBody, "")
 	p.figures, p.identity = nil, ""
 	p.resultsRev++
 }
@@ -703,6 +720,7 @@ func (p *Page) startRun(mode string, recipeJSON []byte) {
 	p.unitsIn = 0
 	p.total = 0
 	p.started = nowMillis()
+	markTime("amplink-run")
 	p.stateAttr = "running"
 	for k := 0; k < n; k++ {
 		p.post(k, wire.Request{Op: wire.OpRun, Seq: p.seq, Source: src, Recipe: recipeJSON, Worker: k, Workers: n}, files)
@@ -743,6 +761,13 @@ func (p *Page) onSort(col int) goapp.EventHandler {
 			p.sortDesc = !p.sortDesc
 		} else {
 			p.sortCol, p.sortDesc = col, false
+		}
+		// rewrite the rows in the new order, a chunk per task
+		p.sorted, p.shownRows = nil, -1
+		if !p.drawing {
+			p.drawing = true
+			p.stateAttr = "drawing"
+			p.later(p.reveal)
 		}
 	}
 }

@@ -34,10 +34,10 @@ func (p *Page) Render() goapp.UI {
 		goapp.If(p.stage >= 2, &checkView{P: p, Summary: p.summary, SVG: p.powerSVG, Err: p.powerErr, Busy: p.powerBusy,
 			Channel: p.powerChan, Target: p.dragTarget, Msg: p.dragMsg, FormRev: p.form.rev, Form: p.form}),
 		goapp.If(p.stage >= 3, &defineView{P: p, Form: p.form, Rev: p.form.rev, FieldKey: p.fieldKey, FieldErr: p.fieldErr,
-			FormErr: p.formErr, Restored: p.restored, ShareURL: p.shareURL}),
-		goapp.If(p.stage >= 4, &runView{P: p, Running: p.running, Done: p.doneUnits(), Total: p.total, Status: p.status,
+			FormErr: p.formErr, Restored: p.restored, ShareURL: p.shareURL, Full: p.stage >= 4}),
+		goapp.If(p.stage >= 5, &runView{P: p, Running: p.running, Done: p.doneUnits(), Total: p.total, Status: p.status,
 			Err: p.runErr, Identity: p.identity}),
-		goapp.If(p.stage >= 5, &resultsView{P: p, Rev: p.resultsRev, Rows: p.shownRows, Figs: p.shownFigs,
+		goapp.If(p.stage >= 6, &resultsView{P: p, Rev: p.resultsRev, Rows: p.shownRows, Figs: p.shownFigs,
 			SortCol: p.sortCol, SortDesc: p.sortDesc}),
 	)
 }
@@ -84,9 +84,10 @@ type defineView struct {
 	FormErr  string
 	Restored string
 	ShareURL string
+	Full     bool // with the analyses (a start-up stage of its own)
 }
 
-func (v *defineView) Render() goapp.UI { return v.P.renderDefine() }
+func (v *defineView) Render() goapp.UI { return v.P.renderDefine(v.Full) }
 
 type runView struct {
 	goapp.Compo
@@ -243,16 +244,17 @@ func (p *Page) windowTargets() [][2]string {
 
 // ---- 3: describe the analysis ----
 
-func (p *Page) renderDefine() goapp.UI {
+func (p *Page) renderDefine(full bool) goapp.UI {
 	var body []goapp.UI
 	body = append(body,
 		goapp.If(p.restored != "", goapp.P().Class("okay").Text(p.restored)),
 		goapp.If(p.formErr != "", goapp.P().Class("error").Text(p.formErr)),
 		goapp.H3().Text("Epochs and frequencies"),
-		goapp.Div().Class("row").Body(p.inputs("", topFields[:4], "")...),
-		goapp.Div().Class("row").Body(p.inputs("", topFields[4:], "")...),
+		goapp.Div().Class("row").Body(p.inputs("", topFields[:topSpectral], "")...),
+		goapp.Div().Class("row").Body(p.inputs("", topFields[topSpectral:topFigures], "")...),
+		goapp.Div().Class("row").Body(p.inputs("", topFields[topFigures:], "")...),
 	)
-	for i := 0; i < p.form.Analyses; i++ {
+	for i := 0; full && i < p.form.Analyses; i++ {
 		body = append(body, p.renderAnalysis(i))
 	}
 	body = append(body,
@@ -418,10 +420,6 @@ func (p *Page) renderRun() goapp.UI {
 
 func (p *Page) renderResults() goapp.UI {
 	t := p.table
-	rows := t.Sorted(p.sortCol, p.sortDesc)
-	if len(rows) > p.shownRows {
-		rows = rows[:p.shownRows]
-	}
 	figs := p.figures
 	if len(figs) > p.shownFigs {
 		figs = figs[:p.shownFigs]
@@ -446,11 +444,10 @@ func (p *Page) renderResults() goapp.UI {
 							Text(t.Header[i])
 					}),
 				)),
-				goapp.TBody().Body(
-					goapp.Range(rows).Slice(func(i int) goapp.UI {
-						return &rowView{Cells: rows[i]}
-					}),
-				),
+				// the rows are written as HTML text, a chunk per task
+				// (Page.reveal, RowsHTML): the browser parses a chunk far
+				// faster than components for each cell are drawn
+				goapp.TBody().ID(resultsBody),
 			),
 		),
 		goapp.If(len(p.warnings) > 0, goapp.Ul().Class("warnings").Body(
@@ -520,17 +517,4 @@ func (p *Page) onExpand(i int) goapp.EventHandler {
 		p.expanded = i
 		p.form.rev++
 	}
-}
-
-// rowView is one results row. As a component it is redrawn only when its
-// cells change, so revealing more rows, or sorting, costs little.
-type rowView struct {
-	goapp.Compo
-	Cells []string
-}
-
-func (r *rowView) Render() goapp.UI {
-	return goapp.Tr().Body(goapp.Range(r.Cells).Slice(func(j int) goapp.UI {
-		return goapp.Td().Text(r.Cells[j])
-	}))
 }

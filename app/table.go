@@ -3,6 +3,7 @@ package app
 import (
 	"encoding/csv"
 	"fmt"
+	"html"
 	"math"
 	"sort"
 	"strconv"
@@ -74,4 +75,23 @@ func (t Table) Sorted(col int, desc bool) [][]string {
 		return (a < b) != desc
 	})
 	return out
+}
+
+// resultsBody is the id of the results table's body.
+const resultsBody = "results-body"
+
+// RowsHTML writes rows as <tr> elements of escaped <td> cells, the text the
+// page appends to the results table's body.
+func RowsHTML(rows [][]string) string {
+	var b strings.Builder
+	for _, r := range rows {
+		b.WriteString("<tr>")
+		for _, c := range r {
+			b.WriteString("<td>")
+			b.WriteString(html.EscapeString(c))
+			b.WriteString("</td>")
+		}
+		b.WriteString("</tr>")
+	}
+	return b.String()
 }

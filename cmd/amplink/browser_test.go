@@ -644,6 +644,7 @@ func TestBrowser(t *testing.T) {
 	})
 
 	t.Run("sort", func(t *testing.T) {
+		before := len(b.table(t).R)
 		// keyboard: focus the r header and press Enter
 		if err := chromedp.Do(b.ctx, chromedp.Focus(chromedp.CSS("#results thead th:nth-child(7)")), chromedp.KeyEvent("\r")); err != nil {
 			t.Fatal(err)
@@ -651,7 +652,11 @@ func TestBrowser(t *testing.T) {
 		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`document.querySelector("#results thead th:nth-child(7)").getAttribute("aria-sort") === "ascending"`, chromedp.WithPollingTimeout(5*time.Second))); err != nil {
 			t.Fatalf("the r column did not sort: %v", err)
 		}
+		b.waitState(t, "done", 10*time.Second) // the rows are rewritten a chunk at a time
 		pt := b.table(t)
+		if len(pt.R) != before {
+			t.Fatalf("%d rows after sorting, %d before", len(pt.R), before)
+		}
 		prev := math.Inf(-1)
 		for _, row := range pt.R {
 			if row[6] == "" {
