@@ -246,6 +246,12 @@ func relativize(name string, b []byte) []byte {
 	switch name {
 	case "index.html":
 		s = ogURL.ReplaceAllString(sortAttrs(s), "")
+		// web/start.js must run before app.js, which go-app always puts
+		// first (both are deferred, so they run in document order)
+		const start, appJS = `<script defer src="./web/start.js"></script>`, `<script defer src="app.js"></script>`
+		if i, j := strings.Index(s, appJS), strings.Index(s, start); i >= 0 && j > i {
+			s = s[:i] + start + s[i:j] + s[j+len(start):]
+		}
 	case "app-worker.js":
 		s = strings.Replace(s, `["/",`, `["./",`, 1)
 		s = strings.ReplaceAll(s, `,"/",`, `,"./",`)

@@ -315,3 +315,18 @@ func TestServeSite(t *testing.T) {
 		t.Errorf("bad address: %v", err)
 	}
 }
+
+// TestSiteScriptOrder: web/start.js replaces how app.js loads the wasm,
+// so it must run first: both are deferred, so it must come first.
+func TestSiteScriptOrder(t *testing.T) {
+	dir, _ := testSite(t)
+	b, err := os.ReadFile(filepath.Join(dir, "index.html"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := string(b)
+	exec, start, appJS := strings.Index(s, `src="wasm_exec.js"`), strings.Index(s, `src="./web/start.js"`), strings.Index(s, `src="app.js"`)
+	if exec < 0 || start < 0 || appJS < 0 || !(exec < start && start < appJS) {
+		t.Fatalf("script order: wasm_exec.js at %d, web/start.js at %d, app.js at %d; want them in that order", exec, start, appJS)
+	}
+}
