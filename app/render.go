@@ -141,7 +141,7 @@ func (p *Page) renderLoad() goapp.UI {
 			goapp.P().Class("hint").ID("capacity").Text(capacityText),
 		),
 		goapp.If(p.loading, goapp.P().Text(p.loadMsg)),
-		goapp.If(p.loadErr != "", goapp.P().Class("error").Aria("live", "assertive").Text(p.loadErr)),
+		goapp.If(p.loadErr != "", goapp.P().ID("load-error").Class("error").Aria("live", "assertive").Text(p.loadErr)),
 		p.renderSummary(),
 	)
 }

@@ -4,6 +4,7 @@ package main
 
 import (
 	"bufio"
+	"bytes"
 	"context"
 	"encoding/json"
 	"fmt"
@@ -27,8 +28,10 @@ import (
 	"github.com/chromedp/cdproto/runtime"
 	"github.com/chromedp/chromedp"
 
+	"amplink/core/data"
 	"amplink/core/demo"
 	"amplink/core/format"
+	"amplink/core/format/edf"
 	"amplink/core/recipe"
 	"amplink/core/report"
 	"amplink/wasm/job"
@@ -381,10 +384,16 @@ func (b *browser) waitState(t *testing.T, want string, timeout time.Duration) {
 	}
 }
 
+// click activates a button as a keyboard user does (focus, then the
+// button's click): a pointer click lands where the button was when its box
+// was measured, and the page may still be moving under it (a form or a
+// table just redrawn above it), so it would miss now and then.
 func (b *browser) click(t *testing.T, id string) {
 	t.Helper()
-	if err := chromedp.Do(b.ctx, chromedp.Click(chromedp.ID(id))); err != nil {
-		t.Fatalf("click #%s: %v", id, err)
+	js := fmt.Sprintf(`(() => { const e = document.getElementById(%q); if (!e || e.disabled) return false; e.focus(); e.click(); return true; })()`, id)
+	ok, err := chromedp.Run(b.ctx, chromedp.Evaluate[bool](js))
+	if err != nil || !ok {
+		t.Fatalf("click #%s: no such enabled button (%v)", id, err)
 	}
 }
 
@@ -854,6 +863,64 @@ func TestBrowser(t *testing.T) {
 		b.waitState(t, "cancelled", time.Second)
 		b.click(t, "identity-check")
 		b.waitState(t, "identity-done", 120*time.Second)
+	})
+
+	t.Run("large", func(t *testing.T) {
+		dir := t.TempDir()
+		// a file over what the page takes is refused before it is read;
+		// sparse, so it costs no disk
+		huge := filepath.Join(dir, "huge.edf")
+		f, err := os.Create(huge)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := f.Truncate(wire.MaxBytes + 1); err != nil {
+			t.Fatal(err)
+		}
+		f.Close()
+		if err := chromedp.Do(b.ctx, chromedp.SetUploadFiles(chromedp.ID("file-input"), []string{huge})); err != nil {
+			t.Fatal(err)
+		}
+		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`(document.getElementById("load-error") || {textContent: ""}).textContent.includes("at most 1024 MiB")`, chromedp.WithPollingTimeout(5*time.Second))); err != nil {
+			t.Fatalf("a file over 1 GiB was not refused: %v (%q)", err, b.text(t, "#load-error"))
+		}
+		// an EDF under that size whose samples would not fit a worker
+		// (64 signals × 4200 one-second records at 1 kHz: 269 million
+		// samples, 1075 MB as float32) is refused by the worker's reader
+		// before it allocates
+		rec := &data.Recording{Rate: 1000}
+		for c := 0; c < 64; c++ {
+			rec.Channels = append(rec.Channels, data.Channel{Name: fmt.Sprintf("E%d", c+1), Unit: "uV"})
+			rec.Samples = append(rec.Samples, make([]float32, 1000))
+		}
+		var eb bytes.Buffer
+		if err := edf.Write(&eb, rec, edf.WriteOptions{}); err != nil {
+			t.Fatal(err)
+		}
+		head := eb.Bytes()
+		hb, err := strconv.Atoi(strings.TrimSpace(string(head[184:192])))
+		if err != nil {
+			t.Fatal(err)
+		}
+		rb := int64(len(head) - hb)     // the one record
+		copy(head[236:244], "-1      ") // number of records: from the file size
+		big := filepath.Join(dir, "long-64ch.edf")
+		if err := os.WriteFile(big, head[:hb], 0o644); err != nil {
+			t.Fatal(err)
+		}
+		if err := os.Truncate(big, int64(hb)+4200*rb); err != nil {
+			t.Fatal(err)
+		}
+		if err := chromedp.Do(b.ctx, chromedp.SetUploadFiles(chromedp.ID("file-input"), []string{big})); err != nil {
+			t.Fatal(err)
+		}
+		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`(document.getElementById("load-error") || {textContent: ""}).textContent.includes("amplink run")`, chromedp.WithPollingTimeout(30*time.Second))); err != nil {
+			t.Fatalf("the worker did not refuse the recording: %v (%q)", err, b.text(t, "#load-error"))
+		}
+		if msg := b.text(t, "#load-error"); !strings.Contains(msg, "long-64ch.edf") || !strings.Contains(msg, "as float32") {
+			t.Errorf("refusal %q does not name the file and the reason", msg)
+		}
+		t.Logf("refusal: %s", b.text(t, "#load-error"))
 	})
 
 	t.Run("validation", func(t *testing.T) {
