@@ -79,7 +79,7 @@ func (o *origin) setOffline(v bool) { o.mu.Lock(); o.offline = v; o.mu.Unlock() 
 func (o *origin) ServeHTTP(w http.ResponseWriter, r *http.Request) {
 	o.mu.Lock()
 	o.reqs = append(o.reqs, request{Method: r.Method, Path: r.URL.Path, Phase: o.phase, At: time.Now()})
-	offline := o.offline
+	offline, site := o.offline, o.site
 	o.mu.Unlock()
 	if offline {
 		http.Error(w, "offline", http.StatusServiceUnavailable)
@@ -89,8 +89,11 @@ func (o *origin) ServeHTTP(w http.ResponseWriter, r *http.Request) {
 		http.NotFound(w, r)
 		return
 	}
-	http.StripPrefix(strings.TrimSuffix(prefix, "/"), o.site).ServeHTTP(w, r)
+	http.StripPrefix(strings.TrimSuffix(prefix, "/"), site).ServeHTTP(w, r)
 }
+
+// setSite serves another site from now on (a new version).
+func (o *origin) setSite(h http.Handler) { o.mu.Lock(); o.site = h; o.mu.Unlock() }
 
 func (o *origin) requests(phase string) []request {
 	o.mu.Lock()
@@ -377,7 +380,7 @@ func (b *browser) waitState(t *testing.T, want string, timeout time.Duration) {
 		}
 		// a navigation (a reload of the page) destroys the context the
 		// poll runs in; poll again in the new one
-		if strings.Contains(err.Error(), "Cannot find context") && time.Now().Before(deadline) {
+		if (strings.Contains(err.Error(), "Cannot find context") || strings.Contains(err.Error(), "navigated or closed")) && time.Now().Before(deadline) {
 			continue
 		}
 		t.Fatalf("waiting for state %q (now %q, error %q): %v", want, b.state(t), b.text(t, "#run-error"), err)
@@ -989,6 +992,40 @@ func TestBrowser(t *testing.T) {
 				t.Errorf("offline, the page still asked the server for %s", r.Path)
 			}
 		}
+	})
+
+	t.Run("update", func(t *testing.T) {
+		// a new version on the server: the page says so and offers a
+		// reload (go-app's service worker finds it; OnAppUpdate shows it)
+		dir, _ := testSite(t)
+		next := filepath.Join(t.TempDir(), "site")
+		if err := os.CopyFS(next, os.DirFS(dir)); err != nil {
+			t.Fatal(err)
+		}
+		sw := filepath.Join(next, "app-worker.js")
+		js, err := os.ReadFile(sw)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := os.WriteFile(sw, append(js, "\n// the next version\n"...), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		b.origin.setSite(SiteHandler(next))
+		defer b.origin.setSite(SiteHandler(dir))
+		if _, err := chromedp.Run(b.ctx, chromedp.Evaluate[bool](`goappServiceWorkerRegistration.update().then(() => true)`, chromedp.EvalAwaitPromise)); err != nil {
+			t.Fatal(err)
+		}
+		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`!!document.querySelector(".update button")`, chromedp.WithPollingTimeout(30*time.Second))); err != nil {
+			t.Fatalf("no update notice: %v", err)
+		}
+		if s := b.text(t, ".update"); !strings.Contains(s, "new version") {
+			t.Fatalf("update notice %q", s)
+		}
+		// the reload button loads the page again, and it starts
+		if _, err := chromedp.Run(b.ctx, chromedp.Evaluate[bool](`document.querySelector(".update button").click(), true`)); err != nil {
+			t.Fatal(err)
+		}
+		b.waitState(t, "ready", 60*time.Second)
 	})
 
 	var paths []string
