@@ -435,14 +435,37 @@ func TestFragmentFromZlib(t *testing.T) {
 // TestRowsHTML: the cells are escaped, so a channel or note holding markup
 // shows as text and cannot add elements to the page.
 func TestRowsHTML(t *testing.T) {
-	got := RowsHTML([][]string{{"a1", "C4", "<img src=x onerror=alert(1)>"}, {"b&c", `"q"`, ""}})
+	got := RowsHTML([][]string{{"a1", "C4", "<img src=x onerror=alert(1)>"}, {"b&c", `"q"`, ""}}, []int{0, 1, 2})
 	want := `<tr><td>a1</td><td>C4</td><td>&lt;img src=x onerror=alert(1)&gt;</td></tr>` +
 		`<tr><td>b&amp;c</td><td>&#34;q&#34;</td><td></td></tr>`
 	if got != want {
 		t.Fatalf("RowsHTML:\n%s\nwant\n%s", got, want)
 	}
-	if RowsHTML(nil) != "" {
+	if RowsHTML(nil, []int{0}) != "" {
 		t.Error("no rows should give no text")
+	}
+	if got := RowsHTML([][]string{{"a", "b", "c"}}, []int{2, 0}); got != "<tr><td>c</td><td>a</td></tr>" {
+		t.Errorf("columns 2 and 0: %s", got)
+	}
+}
+
+// TestVisible: the page shows the fixed eight columns and the other
+// columns with a value, leaving out the per-analysis settings; asked for
+// every column, it shows them all.
+func TestVisible(t *testing.T) {
+	tb := Table{
+		Header: []string{"analysis", "type", "seed", "target", "method", "n", "r", "p", "seed_tmin", "p_perm", "q", "note", "df"},
+		Rows: [][]string{
+			{"a", "trial-window", "C4", "Pz", "spearman", "40", "0.5", "0.001", "-0.5", "", "0.01", "", "38"},
+			{"a", "trial-window", "C4", "Oz", "spearman", "40", "0.1", "0.5", "-0.5", "", "0.5", "", "38"},
+		},
+	}
+	want := []int{0, 1, 2, 3, 4, 5, 6, 7, 10} // q has values; p_perm and note are empty; seed_tmin and df are details
+	if got := tb.Visible(false); !reflect.DeepEqual(got, want) {
+		t.Errorf("main columns %v, want %v", got, want)
+	}
+	if got := tb.Visible(true); len(got) != len(tb.Header) {
+		t.Errorf("every column: %v", got)
 	}
 }
 

@@ -88,6 +88,7 @@ type Page struct {
 	sorted     [][]string // the rows in the current sort order; nil until needed
 	shownFigs  int
 	drawing    bool // reveal is scheduled
+	allCols    bool // the table shows every column, not only the main ones
 	resultsRev int
 	figBufs    []buffer // the figures' SVG, made into Blobs as they are shown
 }
@@ -116,7 +117,9 @@ func (p *Page) advance(ctx goapp.Context) {
 	}
 	p.stateAttr = "ready"
 	markTime("amplink-ready")
-	p.restoreLink()
+	// a shared link's settings in a task of their own (parsing the recipe
+	// the first time compiles the parser)
+	p.later(func(goapp.Context) { p.restoreLink() })
 }
 
 // reveal draws more of the results, then schedules itself until all are
@@ -134,7 +137,7 @@ func (p *Page) reveal(ctx goapp.Context) {
 			p.shownRows = 0
 		}
 		end := min(len(p.sorted), p.shownRows+rowsPerTick)
-		appendBodyHTML(resultsBody, RowsHTML(p.sorted[p.shownRows:end]))
+		appendBodyHTML(resultsBody, RowsHTML(p.sorted[p.shownRows:end], p.table.Visible(p.allCols)))
 		p.shownRows = end
 	case p.shownFigs < len(p.figures):
 		if p.shownFigs < len(p.figBufs) {
@@ -762,14 +765,25 @@ func (p *Page) onSort(col int) goapp.EventHandler {
 		} else {
 			p.sortCol, p.sortDesc = col, false
 		}
-		// rewrite the rows in the new order, a chunk per task
-		p.sorted, p.shownRows = nil, -1
-		if !p.drawing {
-			p.drawing = true
-			p.stateAttr = "drawing"
-			p.later(p.reveal)
-		}
+		p.redrawRows()
 	}
+}
+
+// redrawRows rewrites the table body (new order or columns), a chunk per
+// task.
+func (p *Page) redrawRows() {
+	p.sorted, p.shownRows = nil, -1
+	if !p.drawing {
+		p.drawing = true
+		p.stateAttr = "drawing"
+		p.later(p.reveal)
+	}
+}
+
+// onAllColumns shows every column of the results, or the main ones.
+func (p *Page) onAllColumns(ctx goapp.Context, e goapp.Event) {
+	p.allCols = ctx.JSSrc().Get("checked").Bool()
+	p.redrawRows()
 }
 
 func (p *Page) onReload(ctx goapp.Context, e goapp.Event) {

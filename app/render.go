@@ -38,7 +38,7 @@ func (p *Page) Render() goapp.UI {
 		goapp.If(p.stage >= 5, &runView{P: p, Running: p.running, Done: p.doneUnits(), Total: p.total, Status: p.status,
 			Err: p.runErr, Identity: p.identity}),
 		goapp.If(p.stage >= 6, &resultsView{P: p, Rev: p.resultsRev, Rows: p.shownRows, Figs: p.shownFigs,
-			SortCol: p.sortCol, SortDesc: p.sortDesc}),
+			SortCol: p.sortCol, SortDesc: p.sortDesc, AllCols: p.allCols}),
 	)
 }
 
@@ -110,6 +110,7 @@ type resultsView struct {
 	Figs     int
 	SortCol  int
 	SortDesc bool
+	AllCols  bool
 }
 
 func (v *resultsView) Render() goapp.UI { return v.P.renderResults() }
@@ -420,6 +421,7 @@ func (p *Page) renderRun() goapp.UI {
 
 func (p *Page) renderResults() goapp.UI {
 	t := p.table
+	cols := t.Visible(p.allCols)
 	figs := p.figures
 	if len(figs) > p.shownFigs {
 		figs = figs[:p.shownFigs]
@@ -427,10 +429,15 @@ func (p *Page) renderResults() goapp.UI {
 	downloads := p.sortedDownloads()
 	return step(5, "Results",
 		goapp.If(len(t.Header) == 0, goapp.P().Class("hint").Text("Results appear here after a run.")),
+		goapp.If(len(t.Header) > 0, goapp.Div().Class("field check").Body(
+			goapp.Input().Type("checkbox").ID("all-columns").Checked(p.allCols).OnChange(p.onAllColumns),
+			goapp.Label().For("all-columns").Text(fmt.Sprintf("Show every column (%d; the main %d are shown, and results.csv has them all)", len(t.Header), len(cols))),
+		)),
 		goapp.Div().Class("tablewrap").Body(
 			goapp.Table().ID("results").Class("results").Body(
 				goapp.THead().Body(goapp.Tr().Body(
-					goapp.Range(t.Header).Slice(func(i int) goapp.UI {
+					goapp.Range(cols).Slice(func(k int) goapp.UI {
+						i := cols[k]
 						sortState := "none"
 						if i == p.sortCol {
 							sortState = "ascending"

@@ -80,15 +80,57 @@ func (t Table) Sorted(col int, desc bool) [][]string {
 // resultsBody is the id of the results table's body.
 const resultsBody = "results-body"
 
-// RowsHTML writes rows as <tr> elements of escaped <td> cells, the text the
-// page appends to the results table's body.
-func RowsHTML(rows [][]string) string {
+// detailCols are the results columns the page leaves out unless asked for
+// every column: settings repeated on every row of an analysis (its windows
+// and bands, which the form shows) and bookkeeping. results.csv always has
+// them all.
+var detailCols = map[string]bool{
+	"seed_tmin": true, "seed_tmax": true, "seed_fmin": true, "seed_fmax": true,
+	"target_tmin": true, "target_tmax": true, "target_fmin": true, "target_fmax": true,
+	"band_fmin": true, "band_fmax": true, "target_band_fmin": true, "target_band_fmax": true,
+	"df": true, "p_method": true, "permutations": true, "correction": true, "ci_level": true,
+	"threshold_t": true, "orthogonalize": true, "over": true, "envelope_rate": true,
+	"edge_discard_s": true, "surrogates": true,
+}
+
+// Visible lists the columns the page shows, in table order: every column
+// when all is set, otherwise the fixed first eight and every other column
+// that is not a detail column and has a value in some row.
+func (t Table) Visible(all bool) []int {
+	var out []int
+	for i, h := range t.Header {
+		if all || i < fixedCols {
+			out = append(out, i)
+			continue
+		}
+		if detailCols[h] {
+			continue
+		}
+		for _, r := range t.Rows {
+			if i < len(r) && r[i] != "" {
+				out = append(out, i)
+				break
+			}
+		}
+	}
+	return out
+}
+
+// fixedCols is how many columns every results table starts with (analysis,
+// type, seed, target, method, n, r, p).
+const fixedCols = 8
+
+// RowsHTML writes rows as <tr> elements of the escaped cells in columns
+// cols, the text the page appends to the results table's body.
+func RowsHTML(rows [][]string, cols []int) string {
 	var b strings.Builder
 	for _, r := range rows {
 		b.WriteString("<tr>")
-		for _, c := range r {
+		for _, c := range cols {
 			b.WriteString("<td>")
-			b.WriteString(html.EscapeString(c))
+			if c < len(r) {
+				b.WriteString(html.EscapeString(r[c]))
+			}
 			b.WriteString("</td>")
 		}
 		b.WriteString("</tr>")

@@ -17,6 +17,7 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -162,6 +163,8 @@ type browser struct {
 	problems []string  // console errors, exceptions
 	long     []float64 // after the page was ready
 	startup  []float64 // before: wasm instantiation and the Go runtime's start
+	byLoad   []string  // the start-up tasks of each page load, in order
+	loads    int       // page loads so far
 	longAt   []string
 	marks    []string
 }
@@ -282,7 +285,7 @@ func (b *browser) check(t *testing.T) {
 	}
 	if len(b.startup) > 0 {
 		sort.Float64s(b.startup)
-		t.Logf("start-up long tasks (before the page is ready): %v ms", b.startup)
+		t.Logf("start-up long tasks (before the page is ready): %v ms; by page load: %s", b.startup, strings.Join(b.byLoad, "; "))
 	}
 	if len(b.long) > 0 {
 		sort.Float64s(b.long)
@@ -332,15 +335,21 @@ func (b *browser) collectLong(t *testing.T) {
 	for _, v := range csp {
 		b.problems = append(b.problems, "Content-Security-Policy violation: "+v)
 	}
+	var mine []string
 	for _, d := range ds {
 		if d[1] < ready {
 			b.startup = append(b.startup, d[0])
+			mine = append(mine, fmt.Sprintf("%.0f", d[0]))
 		} else {
 			b.long = append(b.long, d[0])
 		}
 		if d[0] > 200 {
 			b.longAt = append(b.longAt, fmt.Sprintf("%.0f ms at %.0f ms", d[0], d[1]))
 		}
+	}
+	if len(mine) > 0 {
+		b.loads++
+		b.byLoad = append(b.byLoad, fmt.Sprintf("#%d: %s", b.loads, strings.Join(mine, " ")))
 	}
 	b.mu.Unlock()
 	chromedp.Run(b.ctx, chromedp.Evaluate[chromedp.Void](`window.__amplinkLong = []`))
@@ -613,6 +622,30 @@ func TestBrowser(t *testing.T) {
 		}
 		native := nativeRun(t, demo.Recipe(), wire.Source{Demo: true}, nil)
 		compareNative(t, pt, native)
+		// the main columns are shown; asked, every column of results.csv
+		header, _ := native.Table()
+		if len(pt.H) >= len(header) {
+			t.Errorf("the page shows all %d columns by default; it should show the main ones", len(header))
+		}
+		// the click is handled on go-app's loop: wait for the new header
+		// (drawn together with the state "drawing"), then for the rows
+		columns := func(n int) {
+			t.Helper()
+			if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](fmt.Sprintf(`document.querySelectorAll("#results thead th").length === %d`, n), chromedp.WithPollingTimeout(10*time.Second))); err != nil {
+				t.Fatalf("the table did not get %d columns: %v", n, err)
+			}
+			b.waitState(t, "done", 20*time.Second)
+		}
+		b.click(t, "all-columns")
+		columns(len(header))
+		if all := b.table(t); !slices.Equal(all.H, header) || len(all.R) != len(pt.R) {
+			t.Errorf("every column: %d columns and %d rows, want %d and %d", len(all.H), len(all.R), len(header), len(pt.R))
+		}
+		b.click(t, "all-columns")
+		columns(len(pt.H))
+		if back := b.table(t); !slices.Equal(back.H, pt.H) {
+			t.Errorf("main columns again: %v, want %v", back.H, pt.H)
+		}
 		// every figure is shown and every download is offered as a Blob
 		s, err := chromedp.Run(b.ctx, chromedp.Evaluate[string](`JSON.stringify({
 			figs: document.querySelectorAll(".figure img.svgimg").length,
