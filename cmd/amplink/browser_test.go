@@ -414,6 +414,15 @@ func (b *browser) text(t *testing.T, sel string) string {
 	return s
 }
 
+// pick gives files to the page's file input, as choosing them in the
+// file dialog does.
+func (b *browser) pick(t *testing.T, paths []string) {
+	t.Helper()
+	if err := chromedp.Do(b.ctx, chromedp.SetUploadFiles(chromedp.ID("file-input"), paths)); err != nil {
+		t.Fatal(err)
+	}
+}
+
 // setField types a value into a form input and commits it (change event).
 func (b *browser) setField(t *testing.T, id, value string) {
 	t.Helper()
@@ -770,9 +779,7 @@ func TestBrowser(t *testing.T) {
 		if err := os.WriteFile(recipePath, []byte(trialsRecipe), 0o644); err != nil {
 			t.Fatal(err)
 		}
-		if err := chromedp.Do(b.ctx, chromedp.SetUploadFiles(chromedp.ID("file-input"), []string{path, recipePath})); err != nil {
-			t.Fatal(err)
-		}
+		b.pick(t, []string{path, recipePath})
 		name := filepath.Base(path)
 		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](fmt.Sprintf(`(document.querySelector("#summary") || {textContent: ""}).textContent.includes(%q)`, name), chromedp.WithPollingTimeout(60*time.Second))); err != nil {
 			t.Fatalf("no summary of %s: %v (%s)", name, err, b.text(t, ".step .error"))
@@ -794,9 +801,7 @@ func TestBrowser(t *testing.T) {
 
 		// a recipe dropped on its own, with a recording open, runs at once
 		b.origin.setPhase("analysis")
-		if err := chromedp.Do(b.ctx, chromedp.SetUploadFiles(chromedp.ID("file-input"), []string{recipePath})); err != nil {
-			t.Fatal(err)
-		}
+		b.pick(t, []string{recipePath})
 		b.waitState(t, "running", 20*time.Second)
 		b.waitState(t, "done", 120*time.Second)
 		b.origin.setPhase("idle")
@@ -824,9 +829,7 @@ func TestBrowser(t *testing.T) {
 		evPath := filepath.Join(dir, "session_events.tsv")
 		os.WriteFile(recPath, []byte(rec.String()), 0o644)
 		os.WriteFile(evPath, []byte(ev.String()), 0o644)
-		if err := chromedp.Do(b.ctx, chromedp.SetUploadFiles(chromedp.ID("file-input"), []string{recPath, evPath})); err != nil {
-			t.Fatal(err)
-		}
+		b.pick(t, []string{recPath, evPath})
 		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`(document.querySelector("#summary") || {textContent: ""}).textContent.includes("session_eeg.csv")`, chromedp.WithPollingTimeout(60*time.Second))); err != nil {
 			t.Fatalf("no summary: %v (%s)", err, b.text(t, ".step .error"))
 		}
@@ -865,9 +868,7 @@ func TestBrowser(t *testing.T) {
 		}
 		path := filepath.Join(t.TempDir(), "tone.wav")
 		os.WriteFile(path, w, 0o644)
-		if err := chromedp.Do(b.ctx, chromedp.SetUploadFiles(chromedp.ID("file-input"), []string{path})); err != nil {
-			t.Fatal(err)
-		}
+		b.pick(t, []string{path})
 		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`(document.querySelector("#summary") || {textContent: ""}).textContent.includes("tone.wav")`, chromedp.WithPollingTimeout(60*time.Second))); err != nil {
 			t.Fatalf("no summary: %v (%s)", err, b.text(t, ".step .error"))
 		}
@@ -914,9 +915,7 @@ func TestBrowser(t *testing.T) {
 			t.Fatal(err)
 		}
 		f.Close()
-		if err := chromedp.Do(b.ctx, chromedp.SetUploadFiles(chromedp.ID("file-input"), []string{huge})); err != nil {
-			t.Fatal(err)
-		}
+		b.pick(t, []string{huge})
 		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`(document.getElementById("load-error") || {textContent: ""}).textContent.includes("at most 1024 MiB")`, chromedp.WithPollingTimeout(5*time.Second))); err != nil {
 			t.Fatalf("a file over 1 GiB was not refused: %v (%q)", err, b.text(t, "#load-error"))
 		}
@@ -947,9 +946,7 @@ func TestBrowser(t *testing.T) {
 		if err := os.Truncate(big, int64(hb)+4200*rb); err != nil {
 			t.Fatal(err)
 		}
-		if err := chromedp.Do(b.ctx, chromedp.SetUploadFiles(chromedp.ID("file-input"), []string{big})); err != nil {
-			t.Fatal(err)
-		}
+		b.pick(t, []string{big})
 		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`(document.getElementById("load-error") || {textContent: ""}).textContent.includes("amplink run")`, chromedp.WithPollingTimeout(30*time.Second))); err != nil {
 			t.Fatalf("the worker did not refuse the recording: %v (%q)", err, b.text(t, "#load-error"))
 		}

@@ -55,9 +55,7 @@ func TestBrowserWorkload(t *testing.T) {
 	}
 	workers, _ := chromedp.Run(b.ctx, chromedp.Evaluate[int](`navigator.hardwareConcurrency`))
 	paths := []string{filepath.Join(dir, "workload.f32"), filepath.Join(dir, "workload.json"), filepath.Join(dir, "recipe.json")}
-	if err := chromedp.Do(b.ctx, chromedp.SetUploadFiles(chromedp.ID("file-input"), paths)); err != nil {
-		t.Fatal(err)
-	}
+	b.pick(t, paths)
 	b.waitState(t, "loaded", 2*time.Minute)
 
 	var walls []float64
