@@ -34,11 +34,30 @@ func TestSampleLimit(t *testing.T) {
 	if err := edf.Write(&eb, rec, edf.WriteOptions{}); err != nil {
 		t.Fatal(err)
 	}
+	// one long trial: its samples grow before any second trial fixes the
+	// trial length
+	var one strings.Builder
+	one.WriteString("trial,time,Cz,Pz\n")
+	for i := 0; i < 3*4096; i++ {
+		fmt.Fprintf(&one, "1,%.2f,%d,%d\n", float64(i)/100, i%7, i%5)
+	}
 	files := []format.File{
 		format.Bytes("long.edf", eb.Bytes()),
 		format.Bytes("long.csv", []byte(cont.String())),
 		format.Bytes("trials.csv", []byte(ep.String())),
 	}
+	defer func(v int64) { data.MaxSampleBytes = v }(data.MaxSampleBytes)
+	t.Run("one-trial.csv", func(t *testing.T) {
+		f := format.Bytes("one-trial.csv", []byte(one.String()))
+		data.MaxSampleBytes = 0
+		if _, err := format.Decode(f, nil); err != nil {
+			t.Fatalf("no limit: %v", err)
+		}
+		data.MaxSampleBytes = 4 * 4096 // 2 channels × 12288 samples do not fit
+		if _, err := format.Decode(f, nil); !errors.Is(err, data.ErrTooLarge) || !strings.Contains(err.Error(), "one-trial.csv") {
+			t.Fatalf("error %v", err)
+		}
+	})
 	defer func(v int64) { data.MaxSampleBytes = v }(data.MaxSampleBytes)
 	for _, f := range files {
 		t.Run(f.Name, func(t *testing.T) {

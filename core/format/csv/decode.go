@@ -390,6 +390,11 @@ func (d *decoder) epochs() (*format.Data, error) {
 				}
 				bufs[c] = append(bufs[c], v)
 			}
+			if (k+1)&4095 == 0 {
+				if err := data.CheckSamples(int64(k+1) * int64(nch)); err != nil {
+					return nil, d.r.Errorf(line, 0, data.ErrTooLarge, "%v", err)
+				}
+			}
 		} else {
 			if k >= ns {
 				return nil, d.r.Errorf(line, 1, ErrTimeAxis, "trial %s has more than %d samples, the length of trial %s", quote(cur), ns, quote(ids[0]))
