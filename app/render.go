@@ -250,7 +250,7 @@ func (p *Page) renderDefine(full bool) goapp.UI {
 	body = append(body,
 		goapp.If(p.restored != "", goapp.P().Class("okay").Text(p.restored)),
 		goapp.If(p.formErr != "", goapp.P().Class("error").Text(p.formErr)),
-		goapp.H3().Text("Epochs and frequencies"),
+		goapp.H3().Text("Epochs, frequencies and figures"),
 		goapp.Div().Class("row").Body(p.inputs("", topFields[:topSpectral], "")...),
 		goapp.Div().Class("row").Body(p.inputs("", topFields[topSpectral:topFigures], "")...),
 		goapp.Div().Class("row").Body(p.inputs("", topFields[topFigures:], "")...),

@@ -1,5 +1,5 @@
-// amplink page start-up. It runs before go-app's app.js (a plain script
-// runs while the page is parsed; app.js is deferred), which streams
+// amplink page start-up. It runs just before go-app's app.js (both are
+// deferred, and the site writer puts this one first), which streams
 // app.wasm into WebAssembly.instantiateStreaming and then calls go.run.
 // Both are changed here to keep the page's main thread free:
 //  - the module is compiled from its bytes (WebAssembly.instantiate), whose
