@@ -86,6 +86,7 @@ type Page struct {
 	stage      int
 	shownRows  int        // rows written into the table body (see RowsHTML)
 	sorted     [][]string // the rows in the current sort order; nil until needed
+	cols       []int      // the columns shown (Table.Visible); nil until needed
 	shownFigs  int
 	drawing    bool // reveal is scheduled
 	allCols    bool // the table shows every column, not only the main ones
@@ -137,7 +138,7 @@ func (p *Page) reveal(ctx goapp.Context) {
 			p.shownRows = 0
 		}
 		end := min(len(p.sorted), p.shownRows+rowsPerTick)
-		appendBodyHTML(resultsBody, RowsHTML(p.sorted[p.shownRows:end], p.table.Visible(p.allCols)))
+		appendBodyHTML(resultsBody, RowsHTML(p.sorted[p.shownRows:end], p.visible()))
 		p.shownRows = end
 	case p.shownFigs < len(p.figures):
 		if p.shownFigs < len(p.figBufs) {
@@ -326,7 +327,7 @@ func (p *Page) finishRun(rep wire.Reply, bufs []buffer) {
 		p.stateAttr = "identity-done"
 		return
 	}
-	p.table, p.sorted = t, nil
+	p.table, p.sorted, p.cols = t, nil, nil
 	p.sortCol, p.sortDesc = -1, false
 	p.figures = rep.Figures
 	p.warnings = rep.Warnings
@@ -457,7 +458,7 @@ func (p *Page) resetRecording() {
 	p.data, p.events, p.extras, p.demo = nil, nil, nil, false
 	p.summary, p.loadErr, p.loadMsg = nil, "", ""
 	p.powerSVG, p.powerErr, p.powerChan = "", "", ""
-	p.table, p.sorted, p.shownRows = Table{}, nil, 0
+	p.table, p.sorted, p.cols, p.shownRows = Table{}, nil, nil, 0
 	setBodyHTML(resultsBody, "")
 	p.figures, p.identity = nil, ""
 	p.resultsRev++
@@ -782,8 +783,16 @@ func (p *Page) redrawRows() {
 
 // onAllColumns shows every column of the results, or the main ones.
 func (p *Page) onAllColumns(ctx goapp.Context, e goapp.Event) {
-	p.allCols = ctx.JSSrc().Get("checked").Bool()
+	p.allCols, p.cols = ctx.JSSrc().Get("checked").Bool(), nil
 	p.redrawRows()
+}
+
+// visible lists the columns shown, worked out once per table and setting.
+func (p *Page) visible() []int {
+	if p.cols == nil {
+		p.cols = p.table.Visible(p.allCols)
+	}
+	return p.cols
 }
 
 func (p *Page) onReload(ctx goapp.Context, e goapp.Event) {

@@ -421,7 +421,7 @@ func (p *Page) renderRun() goapp.UI {
 
 func (p *Page) renderResults() goapp.UI {
 	t := p.table
-	cols := t.Visible(p.allCols)
+	cols := p.visible()
 	figs := p.figures
 	if len(figs) > p.shownFigs {
 		figs = figs[:p.shownFigs]

@@ -6,8 +6,6 @@ import (
 	"math"
 	"strconv"
 
-	"gonum.org/v1/gonum/floats"
-
 	"amplink/core/connect"
 	"amplink/core/data"
 	"amplink/core/report"
@@ -679,74 +677,22 @@ func (ep *envPlan) timeShift(pr pairRow, stored [][]float64, r float64, rng inte
 	if 2*minLag >= n {
 		return math.NaN()
 	}
-	sc := make([]shiftCorr, len(pr.terms))
+	sc := make([]stats.ShiftCorr, len(pr.terms))
 	for i, t := range pr.terms {
-		sc[i] = newShiftCorr(stored[ep.terms[t].x], stored[ep.terms[t].y], spearman)
+		sc[i] = stats.NewShiftCorr(stored[ep.terms[t].x], stored[ep.terms[t].y], spearman)
 	}
 	rs := make([]float64, len(pr.terms))
 	b := 0
 	for range ep.a.Surrogates {
 		lag := minLag + rng.IntN(n-2*minLag+1)
 		for i := range sc {
-			rs[i] = sc[i].at(lag)
+			rs[i] = sc[i].At(lag)
 		}
 		if rsur := meanR(rs); !math.IsNaN(rsur) && math.Abs(rsur) >= math.Abs(r)-1e-12 {
 			b++
 		}
 	}
 	return stats.PermP(b, ep.a.Surrogates)
-}
-
-// shiftCorr is the correlation of x with y shifted circularly, for many
-// shifts: corr(x, y') with y'[i] = y[(i+lag) mod n], Pearson's or (on ranks,
-// which a circular shift only permutes) Spearman's. The centred series
-// and their sums of squares do not change with the shift, so each shift
-// costs one pass of n products instead of a copy and a full correlation.
-// It agrees with corr on the shifted copy to rounding (about 1e-15).
-type shiftCorr struct {
-	xd, yd []float64 // centred
-	den    float64   // √(Σxd²·Σyd²); 0 when either series is constant
-}
-
-func newShiftCorr(x, y []float64, spearman bool) shiftCorr {
-	if len(x) != len(y) {
-		panic("recipe: shiftCorr length mismatch")
-	}
-	if spearman {
-		x, y = stats.Ranks(nil, x), stats.Ranks(nil, y)
-	}
-	var s shiftCorr
-	if len(x) < 2 {
-		return s
-	}
-	centre := func(v []float64) ([]float64, float64) {
-		m := mean(v)
-		d := make([]float64, len(v))
-		ss := 0.0
-		for i, a := range v {
-			d[i] = a - m
-			ss += d[i] * d[i]
-		}
-		return d, ss
-	}
-	var sxx, syy float64
-	s.xd, sxx = centre(x)
-	s.yd, syy = centre(y)
-	if sxx > 0 && syy > 0 { // a constant series centres to exact zeros
-		s.den = math.Sqrt(sxx * syy)
-	}
-	return s
-}
-
-// at returns the correlation at a shift of lag samples (0 ≤ lag < n); NaN
-// when either series is constant.
-func (s shiftCorr) at(lag int) float64 {
-	if s.den == 0 {
-		return math.NaN()
-	}
-	n := len(s.xd)
-	sxy := floats.Dot(s.xd[:n-lag], s.yd[lag:]) + floats.Dot(s.xd[n-lag:], s.yd[:lag])
-	return max(-1, min(1, sxy/s.den))
 }
 
 // decorrLag returns the first lag at which the autocorrelation of x falls

@@ -4,6 +4,8 @@ import (
 	"math"
 	"math/rand/v2"
 	"testing"
+
+	"amplink/core/stats"
 )
 
 // shifted is y moved circularly by lag samples, as the time-shift
@@ -36,24 +38,24 @@ func TestShiftCorr(t *testing.T) {
 		{"pearson", x, y, false}, {"spearman", x, y, true},
 		{"pearson ties", x, tied, false}, {"spearman ties", tied, x, true},
 	} {
-		sc := newShiftCorr(c.x, c.y, c.spearman)
+		sc := stats.NewShiftCorr(c.x, c.y, c.spearman)
 		for _, lag := range []int{0, 1, 99, n / 2, n - 1, rng.IntN(n)} {
 			want := corr(c.x, shifted(c.y, lag), c.spearman)
-			if got := sc.at(lag); math.Abs(got-want) > 1e-13 {
+			if got := sc.At(lag); math.Abs(got-want) > 1e-13 {
 				t.Errorf("%s, lag %d: %.17g, corr of the shifted copy %.17g", c.name, lag, got, want)
 			}
 		}
 	}
 	flat := make([]float64, n)
 	for _, sp := range []bool{false, true} {
-		if got := newShiftCorr(x, flat, sp).at(5); !math.IsNaN(got) || !math.IsNaN(corr(x, flat, sp)) {
+		if got := stats.NewShiftCorr(x, flat, sp).At(5); !math.IsNaN(got) || !math.IsNaN(corr(x, flat, sp)) {
 			t.Errorf("constant series (spearman %v): %v", sp, got)
 		}
 	}
 }
 
 // BenchmarkTimeShift is one pair's 1000 time-shift surrogates on envelopes
-// of 6000 samples (10 minutes at 10 Hz): the one-pass shiftCorr against a
+// of 6000 samples (10 minutes at 10 Hz): the one-pass stats.ShiftCorr against a
 // shifted copy and a full correlation per surrogate.
 func BenchmarkTimeShift(b *testing.B) {
 	rng := rand.New(rand.NewPCG(1, 2))
@@ -68,9 +70,9 @@ func BenchmarkTimeShift(b *testing.B) {
 	}
 	b.Run("shiftCorr", func(b *testing.B) {
 		for b.Loop() {
-			sc := newShiftCorr(x, y, false)
+			sc := stats.NewShiftCorr(x, y, false)
 			for _, l := range lags {
-				sc.at(l)
+				sc.At(l)
 			}
 		}
 	})

@@ -28,11 +28,7 @@ type table struct {
 func open(f format.File) (*table, error) {
 	r := csv.NewReader(f)
 	r.Comma, r.Format = '\t', "bids"
-	hdr, line, err := r.Read()
-	if err == io.EOF {
-		return nil, &format.Error{Format: "bids", File: f.Name, Offset: -1,
-			Err: &csv.Message{Text: "file is empty", Kind: csv.ErrNoData}}
-	}
+	hdr, line, err := r.Header()
 	if err != nil {
 		return nil, err
 	}

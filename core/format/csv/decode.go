@@ -55,11 +55,7 @@ func init() {
 // the column (1-based field number).
 func Decode(f format.File) (*format.Data, error) {
 	r := NewReader(f)
-	hdr, line, err := r.Read()
-	if err == io.EOF {
-		return nil, &format.Error{Format: "csv", File: f.Name, Offset: -1,
-			Err: &Message{Text: "file is empty", Kind: ErrNoData}}
-	}
+	hdr, line, err := r.Header()
 	if err != nil {
 		return nil, err
 	}

@@ -58,6 +58,17 @@ func (r *Reader) Offset() int64 { return r.off }
 // Line returns the number of the last line read (1-based).
 func (r *Reader) Line() int { return r.line }
 
+// Header reads the first non-blank line, the header, like Read; an empty
+// file is an error wrapping ErrNoData rather than io.EOF.
+func (r *Reader) Header() ([]string, int, error) {
+	hdr, line, err := r.Read()
+	if err == io.EOF {
+		return nil, 0, &format.Error{Format: r.format(), File: r.name, Offset: -1,
+			Err: &Message{Text: "file is empty", Kind: ErrNoData}}
+	}
+	return hdr, line, err
+}
+
 // Read returns the fields of the next non-blank line and its 1-based line
 // number. It returns io.EOF, and no fields, after the last line. The
 // returned slice is reused by the next call; the strings in it stay valid.

@@ -41,11 +41,7 @@ func (t *Table) Row(trial string) []string {
 // fields as the header. Errors are *format.Error values with line and column.
 func DecodeTrials(f format.File) (*Table, error) {
 	r := NewReader(f)
-	hdr, line, err := r.Read()
-	if err == io.EOF {
-		return nil, &format.Error{Format: "csv", File: f.Name, Offset: -1,
-			Err: &Message{Text: "file is empty", Kind: ErrNoData}}
-	}
+	hdr, line, err := r.Header()
 	if err != nil {
 		return nil, err
 	}
