@@ -7,7 +7,7 @@ import (
 
 	goapp "github.com/maxence-charriere/go-app/v9/pkg/app"
 
-	"amplink/wasm/wire"
+	"amplink/app/wire"
 )
 
 // Natively the page is only rendered (to pre-render the static site), never

@@ -12,8 +12,8 @@ import (
 
 	goapp "github.com/maxence-charriere/go-app/v9/pkg/app"
 
-	"amplink/wasm/startup"
-	"amplink/wasm/wire"
+	"amplink/app/startup"
+	"amplink/app/wire"
 )
 
 // handle is a browser File (or Blob).

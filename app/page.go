@@ -11,8 +11,9 @@ import (
 
 	goapp "github.com/maxence-charriere/go-app/v9/pkg/app"
 
+	"amplink/app/wire"
+	"amplink/core/dataset"
 	"amplink/core/recipe"
-	"amplink/wasm/wire"
 )
 
 // run modes
@@ -33,7 +34,7 @@ type Page struct {
 	events  *fileRef
 	extras  []fileRef
 	demo    bool
-	summary *recipe.Summary
+	summary *dataset.Summary
 	loadMsg string
 	loadErr string
 	loading bool
@@ -243,7 +244,7 @@ func (p *Page) handleReply(k int, rep wire.Reply, bufs []buffer) {
 		p.fail(rep.Error)
 	case wire.OpSummary:
 		p.loading = false
-		var s recipe.Summary
+		var s dataset.Summary
 		if err := json.Unmarshal(rep.Summary, &s); err != nil {
 			p.loadErr = err.Error()
 			return

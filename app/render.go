@@ -6,8 +6,9 @@ import (
 
 	goapp "github.com/maxence-charriere/go-app/v9/pkg/app"
 
+	"amplink/app/wire"
+	"amplink/core/dataset"
 	"amplink/core/recipe"
-	"amplink/wasm/wire"
 )
 
 // Render draws the page: five numbered steps, top to bottom.
@@ -50,7 +51,7 @@ func (p *Page) Render() goapp.UI {
 type loadView struct {
 	goapp.Compo
 	P       *Page
-	Summary *recipe.Summary
+	Summary *dataset.Summary
 	Loading bool
 	Msg     string
 	Err     string
@@ -61,7 +62,7 @@ func (v *loadView) Render() goapp.UI { return v.P.renderLoad() }
 type checkView struct {
 	goapp.Compo
 	P       *Page
-	Summary *recipe.Summary
+	Summary *dataset.Summary
 	SVG     string
 	Err     string
 	Busy    bool

@@ -8,7 +8,7 @@
 //  - the Go program starts one task after the module is ready: Chromium
 //    compiles each wasm function on its first call, so starting the runtime
 //    in the same task would make that task too long. The Go side splits the
-//    rest (see wasm/startup).
+//    rest (see app/startup).
 "use strict";
 (() => {
   const delayRun = () => {

@@ -29,14 +29,15 @@ import (
 	"github.com/chromedp/cdproto/runtime"
 	"github.com/chromedp/chromedp"
 
+	"amplink/app/wire"
 	"amplink/core/data"
 	"amplink/core/demo"
 	"amplink/core/format"
 	"amplink/core/format/edf"
+	"amplink/core/pipeline"
 	"amplink/core/recipe"
 	"amplink/core/report"
 	"amplink/wasm/job"
-	"amplink/wasm/wire"
 )
 
 // The browser tests drive Debian's Chromium like a user would, against the
@@ -274,7 +275,7 @@ func (b *browser) check(t *testing.T) {
 	}
 	// Start-up (instantiating the page's wasm, starting the Go runtime and
 	// the first drawing) is split into tasks too (web/start.js,
-	// wasm/startup); it is held to the same limit as everything after.
+	// app/startup); it is held to the same limit as everything after.
 	for _, d := range append(b.startup, b.long...) {
 		if d > 200 {
 			t.Errorf("a main-thread task took %.0f ms (limit 200 ms)", d)
@@ -497,7 +498,7 @@ func checkHeader(t *testing.T, h []string) {
 	}
 }
 
-// compareNative checks the page's rows against recipe.Run on the same data
+// compareNative checks the page's rows against pipeline.Run on the same data
 // (the native core): same rows, r equal to 1e-9.
 func compareNative(t *testing.T, pt pageTable, res *report.Results) {
 	t.Helper()
@@ -544,7 +545,7 @@ func nativeRun(t *testing.T, recipeJSON []byte, src wire.Source, files job.Files
 	if err != nil {
 		t.Fatal(err)
 	}
-	res, err := recipe.Run(context.Background(), r, ds, nil)
+	res, err := pipeline.Run(context.Background(), r, ds, nil)
 	if err != nil {
 		t.Fatal(err)
 	}

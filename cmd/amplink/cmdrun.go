@@ -11,9 +11,12 @@ import (
 	"path/filepath"
 	"runtime/debug"
 
+	"amplink/core/dataset"
+	"amplink/core/figures"
 	"amplink/core/format"
 	_ "amplink/core/format/all"
 	"amplink/core/format/csv"
+	"amplink/core/pipeline"
 	"amplink/core/recipe"
 	"amplink/core/report"
 )
@@ -128,7 +131,7 @@ func cmdRun(stdout, stderr io.Writer, args []string) error {
 		}
 		all.Rows = append(all.Rows, g...)
 		if rcp.Figures.Enabled {
-			all.Figures = append(all.Figures, report.GroupFigures(all.Rows)...)
+			all.Figures = append(all.Figures, figures.Group(all.Rows)...)
 		}
 	} else if *groupsPath != "" {
 		return errors.New("run: --groups compares recordings; give more than one input file")
@@ -151,7 +154,7 @@ func runOne(ctx context.Context, stderr io.Writer, rcp *recipe.Recipe, path stri
 	defer osf.Close()
 	sib := &dirSiblings{dir: filepath.Dir(path)}
 	defer sib.Close()
-	ds, err := recipe.Open(rcp, f, events, sib)
+	ds, err := dataset.Open(rcp, f, events, sib)
 	if err != nil {
 		return nil, err
 	}
@@ -160,7 +163,7 @@ func runOne(ctx context.Context, stderr io.Writer, rcp *recipe.Recipe, path stri
 			return nil, err
 		}
 	}
-	p, err := recipe.NewPlan(rcp, ds)
+	p, err := pipeline.NewPlan(rcp, ds)
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", path, err)
 	}
@@ -178,7 +181,7 @@ func runOne(ctx context.Context, stderr io.Writer, rcp *recipe.Recipe, path stri
 		return nil, fmt.Errorf("%s: %w", path, err)
 	}
 	if prefix {
-		stem := recipe.Stem(path)
+		stem := dataset.Stem(path)
 		for i := range out.Maps {
 			out.Maps[i].Name = stem + "_" + out.Maps[i].Name
 		}

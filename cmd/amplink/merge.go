@@ -13,6 +13,7 @@ import (
 	"strconv"
 	"strings"
 
+	"amplink/core/figures"
 	"amplink/core/report"
 )
 
@@ -89,7 +90,7 @@ func cmdMerge(stdout, stderr io.Writer, args []string) (err error) {
 		if err := os.MkdirAll(*figDir, 0o755); err != nil {
 			return fmt.Errorf("merge: %w", err)
 		}
-		for _, f := range report.GroupFigures(all.Rows) {
+		for _, f := range figures.Group(all.Rows) {
 			if err := os.WriteFile(filepath.Join(*figDir, f.Name+".svg"), []byte(f.SVG), 0o644); err != nil {
 				return fmt.Errorf("merge: %w", err)
 			}

@@ -12,9 +12,9 @@ import (
 	"github.com/chromedp/cdproto/page"
 	"github.com/chromedp/chromedp"
 
+	"amplink/app/wire"
 	"amplink/core/format"
 	"amplink/wasm/job"
-	"amplink/wasm/wire"
 )
 
 // TestBrowserWorkload runs the standard benchmark workload (written by

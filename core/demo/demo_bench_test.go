@@ -4,6 +4,8 @@ import (
 	"context"
 	"testing"
 
+	"amplink/core/dataset"
+	"amplink/core/pipeline"
 	"amplink/core/recipe"
 )
 
@@ -20,7 +22,7 @@ func BenchmarkSeedToAllPermutations(b *testing.B) {
 			if err != nil {
 				b.Fatal(err)
 			}
-			p, err := recipe.NewPlan(r, &recipe.Dataset{Name: "demo", Epochs: Epochs()})
+			p, err := pipeline.NewPlan(r, &dataset.Dataset{Name: "demo", Epochs: Epochs()})
 			if err != nil {
 				b.Fatal(err)
 			}
@@ -48,7 +50,7 @@ func BenchmarkDemoWindowPower(b *testing.B) {
 	if err != nil {
 		b.Fatal(err)
 	}
-	p, err := recipe.NewPlan(r, &recipe.Dataset{Name: "demo", Epochs: Epochs()})
+	p, err := pipeline.NewPlan(r, &dataset.Dataset{Name: "demo", Epochs: Epochs()})
 	if err != nil {
 		b.Fatal(err)
 	}

@@ -5,6 +5,8 @@ import (
 	"math"
 	"testing"
 
+	"amplink/core/dataset"
+	"amplink/core/pipeline"
 	"amplink/core/recipe"
 	"amplink/core/report"
 )
@@ -20,8 +22,8 @@ func TestDemoPlantedEffects(t *testing.T) {
 		t.Fatal(err)
 	}
 	rec := Recording()
-	ds := &recipe.Dataset{Name: "demo", Recording: rec, Epochs: Epochs()}
-	res, err := recipe.Run(context.Background(), r, ds, nil)
+	ds := &dataset.Dataset{Name: "demo", Recording: rec, Epochs: Epochs()}
+	res, err := pipeline.Run(context.Background(), r, ds, nil)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -24,9 +24,13 @@ func (e *FieldError) Error() string {
 	return e.Field + ": " + e.Msg
 }
 
-func ferr(field, format string, args ...any) error {
+// Errorf returns a *FieldError for field, for the packages that check a
+// recipe against data (the analyses name the recipe field they refuse).
+func Errorf(field, format string, args ...any) error {
 	return &FieldError{Field: field, Msg: fmt.Sprintf(format, args...)}
 }
+
+func ferr(field, format string, args ...any) error { return Errorf(field, format, args...) }
 
 // decodeJSON parses b into generic values, with numbers kept exact, and
 // turns syntax errors into line:column positions.

@@ -21,6 +21,17 @@ type Row struct {
 	Extra    []Field // further columns in a stable order
 }
 
+// Field returns the value of the extra column name, or "" when the row has
+// none.
+func (r Row) Field(name string) string {
+	for _, f := range r.Extra {
+		if f.Name == name {
+			return f.Value
+		}
+	}
+	return ""
+}
+
 // Map is a labelled matrix written to maps/<Name>.csv.
 type Map struct {
 	Name      string

@@ -3,5 +3,5 @@
 // of the units, and (worker 0) combine every worker's units into results.
 //
 // It is plain Go, so the native tests run the very code the browser's
-// workers run, and can compare a split run against recipe.Run.
+// workers run, and can compare a split run against pipeline.Run.
 package job

@@ -10,13 +10,15 @@ import (
 	"sort"
 	"time"
 
+	"amplink/app/wire"
 	"amplink/core/data"
+	"amplink/core/dataset"
 	"amplink/core/demo"
 	"amplink/core/format"
 	_ "amplink/core/format/all" // every reader
+	"amplink/core/pipeline"
 	"amplink/core/recipe"
 	"amplink/core/report"
-	"amplink/wasm/wire"
 )
 
 // MaxBytes is the most file bytes one worker accepts; see wire.MaxBytes.
@@ -32,7 +34,7 @@ type Worker struct {
 	Sleep func()
 
 	// kept between OpRun and OpFinish of the same Seq
-	plan *recipe.Plan
+	plan *pipeline.Plan
 	seq  int
 }
 
@@ -96,7 +98,7 @@ func (w *Worker) HandleFiles(ctx context.Context, req wire.Request, list []forma
 			fail(err)
 			return
 		}
-		sum, err := json.Marshal(recipe.Describe(ds))
+		sum, err := json.Marshal(dataset.Describe(ds))
 		if err != nil {
 			fail(err)
 			return
@@ -133,7 +135,7 @@ func (w *Worker) HandleFiles(ctx context.Context, req wire.Request, list []forma
 			fail(errors.New("worker: finish without a matching run"))
 			return
 		}
-		var all []recipe.UnitResult
+		var all []pipeline.UnitResult
 		for i, f := range list {
 			b, err := io.ReadAll(io.NewSectionReader(f.R, 0, f.Size))
 			if err != nil {
@@ -171,7 +173,7 @@ func (w *Worker) HandleFiles(ctx context.Context, req wire.Request, list []forma
 	}
 }
 
-func (w *Worker) planFor(req wire.Request, files Files) (*recipe.Plan, error) {
+func (w *Worker) planFor(req wire.Request, files Files) (*pipeline.Plan, error) {
 	r, err := recipe.Parse(req.Recipe)
 	if err != nil {
 		return nil, err
@@ -180,12 +182,12 @@ func (w *Worker) planFor(req wire.Request, files Files) (*recipe.Plan, error) {
 	if err != nil {
 		return nil, err
 	}
-	return recipe.NewPlan(r, ds)
+	return pipeline.NewPlan(r, ds)
 }
 
 // compute runs the listed units in order, reporting the count done after
 // each, and yields to the event loop at least every YieldEvery.
-func (w *Worker) compute(ctx context.Context, p *recipe.Plan, ids []int, total int, progress func(done int)) ([]recipe.UnitResult, error) {
+func (w *Worker) compute(ctx context.Context, p *pipeline.Plan, ids []int, total int, progress func(done int)) ([]pipeline.UnitResult, error) {
 	every := w.YieldEvery
 	if every <= 0 {
 		every = 50 * time.Millisecond
@@ -195,7 +197,7 @@ func (w *Worker) compute(ctx context.Context, p *recipe.Plan, ids []int, total i
 		sleep = func() { time.Sleep(time.Millisecond) }
 	}
 	last := time.Now()
-	out := make([]recipe.UnitResult, 0, len(ids))
+	out := make([]pipeline.UnitResult, 0, len(ids))
 	for i, id := range ids {
 		if err := ctx.Err(); err != nil {
 			return nil, err
@@ -216,7 +218,7 @@ func (w *Worker) compute(ctx context.Context, p *recipe.Plan, ids []int, total i
 
 // Open decodes the source into a dataset: the demo recording, or the named
 // data file with its events file and sidecars.
-func Open(r *recipe.Recipe, src wire.Source, files Files) (*recipe.Dataset, error) {
+func Open(r *recipe.Recipe, src wire.Source, files Files) (*dataset.Dataset, error) {
 	if src.Demo {
 		return demoDataset(r)
 	}
@@ -232,7 +234,7 @@ func Open(r *recipe.Recipe, src wire.Source, files Files) (*recipe.Dataset, erro
 		}
 		ev = &e
 	}
-	ds, err := recipe.Open(r, f, ev, files)
+	ds, err := dataset.Open(r, f, ev, files)
 	if errors.Is(err, data.ErrTooLarge) {
 		err = fmt.Errorf("%w. The page's workers hold at most %d MiB of samples each; the command-line tool (amplink run) has no such limit", err, data.MaxSampleBytes>>20)
 	}
@@ -242,7 +244,7 @@ func Open(r *recipe.Recipe, src wire.Source, files Files) (*recipe.Dataset, erro
 // Assign splits units over n workers: longest first onto the least loaded
 // worker (ties to the lower number), so the split depends only on the plan.
 // Each worker's list is in increasing unit ID.
-func Assign(units []recipe.Unit, n int) [][]int {
+func Assign(units []pipeline.Unit, n int) [][]int {
 	if n < 1 {
 		panic("job: Assign needs at least one worker")
 	}

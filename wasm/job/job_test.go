@@ -13,23 +13,25 @@ import (
 	"strings"
 	"testing"
 
+	"amplink/app/wire"
 	"amplink/core/data"
+	"amplink/core/dataset"
 	"amplink/core/demo"
 	"amplink/core/format"
+	"amplink/core/pipeline"
 	"amplink/core/recipe"
 	"amplink/core/report"
-	"amplink/wasm/wire"
 )
 
 func TestUnitsRoundTrip(t *testing.T) {
 	cases := []struct {
 		name string
-		in   []recipe.UnitResult
+		in   []pipeline.UnitResult
 	}{
 		{"none", nil},
-		{"empty values", []recipe.UnitResult{{ID: 3}}},
-		{"special values", []recipe.UnitResult{{ID: 0, Values: []float64{math.NaN(), math.Inf(1), math.Inf(-1), -0.0, 5e-324, math.MaxFloat64}}}},
-		{"several", []recipe.UnitResult{{ID: 2, Values: []float64{1, 2}}, {ID: 0, Values: []float64{0.1}}}},
+		{"empty values", []pipeline.UnitResult{{ID: 3}}},
+		{"special values", []pipeline.UnitResult{{ID: 0, Values: []float64{math.NaN(), math.Inf(1), math.Inf(-1), -0.0, 5e-324, math.MaxFloat64}}}},
+		{"several", []pipeline.UnitResult{{ID: 2, Values: []float64{1, 2}}, {ID: 0, Values: []float64{0.1}}}},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -58,7 +60,7 @@ func TestUnitsRoundTrip(t *testing.T) {
 // TestUnitsLayout checks the bytes against the layout in units.go, written
 // out by hand (little-endian, IEEE 754 binary64: 1.0 = 0x3FF0000000000000).
 func TestUnitsLayout(t *testing.T) {
-	got := EncodeUnits([]recipe.UnitResult{{ID: 5, Values: []float64{1}}})
+	got := EncodeUnits([]pipeline.UnitResult{{ID: 5, Values: []float64{1}}})
 	want := []byte{1, 0, 0, 0, 5, 0, 0, 0, 1, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0xf0, 0x3f}
 	if !bytes.Equal(got, want) {
 		t.Fatalf("bytes % x, want % x", got, want)
@@ -74,7 +76,7 @@ func TestDecodeUnitsErrors(t *testing.T) {
 		{"short", []byte{1, 0}, "2 bytes"},
 		{"count too big", []byte{0xff, 0xff, 0xff, 0x0f}, "cannot fit"},
 		{"values truncated", []byte{1, 0, 0, 0, 0, 0, 0, 0, 2, 0, 0, 0, 1, 2, 3}, "values truncated at byte 12"},
-		{"left over", append(EncodeUnits([]recipe.UnitResult{{ID: 1}}), 9), "1 bytes left over"},
+		{"left over", append(EncodeUnits([]pipeline.UnitResult{{ID: 1}}), 9), "1 bytes left over"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -97,7 +99,7 @@ func FuzzDecodeUnits(f *testing.F) {
 		}
 		f.Add(b)
 	}
-	f.Add(EncodeUnits([]recipe.UnitResult{{ID: 1, Values: []float64{math.NaN()}}}))
+	f.Add(EncodeUnits([]pipeline.UnitResult{{ID: 1, Values: []float64{math.NaN()}}}))
 	f.Fuzz(func(t *testing.T, b []byte) {
 		u, err := DecodeUnits(b)
 		if err != nil {
@@ -110,7 +112,7 @@ func FuzzDecodeUnits(f *testing.F) {
 }
 
 func TestAssign(t *testing.T) {
-	units := []recipe.Unit{{ID: 0, Cost: 5}, {ID: 1, Cost: 1}, {ID: 2, Cost: 4}, {ID: 3, Cost: 3}, {ID: 4, Cost: 3}}
+	units := []pipeline.Unit{{ID: 0, Cost: 5}, {ID: 1, Cost: 1}, {ID: 2, Cost: 4}, {ID: 3, Cost: 3}, {ID: 4, Cost: 3}}
 	cases := []struct {
 		name string
 		n    int
@@ -194,7 +196,7 @@ const smallRecipe = `{"spectral": {"low": 2, "high": 30, "steps": 10},
 
 // TestSplitEqualsRun runs a recording the way the page does — units split
 // over W workers, each decoding its own copy of the bytes, then Finish on
-// worker 0 — and compares results.csv with recipe.Run natively: they must
+// worker 0 — and compares results.csv with pipeline.Run natively: they must
 // be byte-identical, whatever W.
 func TestSplitEqualsRun(t *testing.T) {
 	data := trialsCSV()
@@ -207,7 +209,7 @@ func TestSplitEqualsRun(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	res, err := recipe.Run(context.Background(), r, ds, nil)
+	res, err := pipeline.Run(context.Background(), r, ds, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -254,7 +256,7 @@ func TestSplitEqualsRun(t *testing.T) {
 				}
 			}
 			if rep.CSV != want.String() {
-				t.Fatalf("split results.csv differs from recipe.Run:\n%s\nwant\n%s", rep.CSV, want.String())
+				t.Fatalf("split results.csv differs from pipeline.Run:\n%s\nwant\n%s", rep.CSV, want.String())
 			}
 			if progress == 0 {
 				t.Error("no progress replies")
@@ -307,7 +309,7 @@ func TestDescribeDemo(t *testing.T) {
 	var rp replies
 	w.Handle(context.Background(), wire.Request{Op: wire.OpDemo, Seq: 1, Source: wire.Source{Demo: true}}, nil, nil, rp.post)
 	rep, _ := rp.last(t, wire.OpSummary)
-	var s recipe.Summary
+	var s dataset.Summary
 	if err := json.Unmarshal(rep.Summary, &s); err != nil {
 		t.Fatal(err)
 	}

@@ -4,12 +4,13 @@ import (
 	"errors"
 	"fmt"
 
+	"amplink/app/wire"
 	"amplink/core/data"
+	"amplink/core/dataset"
 	"amplink/core/demo"
 	"amplink/core/plot"
 	"amplink/core/recipe"
 	"amplink/core/spectral"
-	"amplink/wasm/wire"
 )
 
 // maxPowerCols bounds the columns of the check map: a column every
@@ -18,7 +19,7 @@ const maxPowerCols = 300
 
 // demoDataset is the demo recording, cut as r asks (or as the demo recipe
 // does when r is nil).
-func demoDataset(r *recipe.Recipe) (*recipe.Dataset, error) {
+func demoDataset(r *recipe.Recipe) (*dataset.Dataset, error) {
 	if r == nil {
 		var err error
 		if r, err = recipe.Parse(demo.Recipe()); err != nil {
@@ -26,7 +27,7 @@ func demoDataset(r *recipe.Recipe) (*recipe.Dataset, error) {
 		}
 	}
 	rec := demo.Recording()
-	ds := &recipe.Dataset{Name: "demo", Format: rec.Format, Recording: rec, Notes: append([]string(nil), rec.Notes...)}
+	ds := &dataset.Dataset{Name: "demo", Format: rec.Format, Recording: rec, Notes: append([]string(nil), rec.Notes...)}
 	if r.Epochs != nil {
 		ep, err := data.Epoch(rec, nil, r.Epochs.Event, r.Epochs.Start, r.Epochs.End)
 		if err != nil {

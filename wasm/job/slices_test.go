@@ -9,8 +9,8 @@ import (
 	"strings"
 	"testing"
 
+	"amplink/app/wire"
 	"amplink/core/format"
-	"amplink/wasm/wire"
 )
 
 // sliced is a SliceReader over b whose Fetch copies from b, as the worker's

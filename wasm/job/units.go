@@ -6,7 +6,7 @@ import (
 	"fmt"
 	"math"
 
-	"amplink/core/recipe"
+	"amplink/core/pipeline"
 )
 
 // Unit results cross the worker boundary as bytes, not JSON: JSON has no
@@ -20,7 +20,7 @@ import (
 var ErrUnitBytes = errors.New("malformed unit results")
 
 // EncodeUnits packs unit results.
-func EncodeUnits(res []recipe.UnitResult) []byte {
+func EncodeUnits(res []pipeline.UnitResult) []byte {
 	n := 4
 	for _, r := range res {
 		n += 8 + 8*len(r.Values)
@@ -39,7 +39,7 @@ func EncodeUnits(res []recipe.UnitResult) []byte {
 
 // DecodeUnits unpacks EncodeUnits output. It checks every length against
 // the bytes left before allocating.
-func DecodeUnits(b []byte) ([]recipe.UnitResult, error) {
+func DecodeUnits(b []byte) ([]pipeline.UnitResult, error) {
 	if len(b) < 4 {
 		return nil, fmt.Errorf("%w: %d bytes, want at least 4", ErrUnitBytes, len(b))
 	}
@@ -48,7 +48,7 @@ func DecodeUnits(b []byte) ([]recipe.UnitResult, error) {
 	if uint64(count)*8 > uint64(len(b)-off) {
 		return nil, fmt.Errorf("%w: %d units cannot fit in %d bytes", ErrUnitBytes, count, len(b))
 	}
-	out := make([]recipe.UnitResult, 0, count)
+	out := make([]pipeline.UnitResult, 0, count)
 	for i := uint32(0); i < count; i++ {
 		if len(b)-off < 8 {
 			return nil, fmt.Errorf("%w: unit %d: header truncated at byte %d", ErrUnitBytes, i, off)
@@ -64,7 +64,7 @@ func DecodeUnits(b []byte) ([]recipe.UnitResult, error) {
 			vals[k] = math.Float64frombits(binary.LittleEndian.Uint64(b[off:]))
 			off += 8
 		}
-		out = append(out, recipe.UnitResult{ID: int(id), Values: vals})
+		out = append(out, pipeline.UnitResult{ID: int(id), Values: vals})
 	}
 	if off != len(b) {
 		return nil, fmt.Errorf("%w: %d bytes left over at byte %d", ErrUnitBytes, len(b)-off, off)

@@ -4,16 +4,16 @@ import (
 	"fmt"
 	"testing"
 
-	"amplink/core/recipe"
+	"amplink/core/pipeline"
 )
 
 // BenchmarkUnits measures packing and unpacking unit results, which the
 // page moves between workers after every run.
 func BenchmarkUnits(b *testing.B) {
 	for _, n := range []int{100, 10000} {
-		res := make([]recipe.UnitResult, 20)
+		res := make([]pipeline.UnitResult, 20)
 		for i := range res {
-			res[i] = recipe.UnitResult{ID: i, Values: make([]float64, n)}
+			res[i] = pipeline.UnitResult{ID: i, Values: make([]float64, n)}
 		}
 		enc := EncodeUnits(res)
 		b.Run(fmt.Sprintf("encode-%d", n), func(b *testing.B) {

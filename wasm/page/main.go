@@ -8,8 +8,8 @@ import (
 	goapp "github.com/maxence-charriere/go-app/v9/pkg/app"
 
 	"amplink/app"
-	"amplink/wasm/startup"
-	_ "amplink/wasm/startup/late"
+	"amplink/app/startup"
+	_ "amplink/app/startup/late"
 )
 
 func main() {

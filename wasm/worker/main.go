@@ -17,10 +17,10 @@ import (
 	"fmt"
 	"syscall/js"
 
+	"amplink/app/wire"
 	"amplink/core/data"
 	"amplink/core/format"
 	"amplink/wasm/job"
-	"amplink/wasm/wire"
 )
 
 type message struct {

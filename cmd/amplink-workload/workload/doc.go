@@ -4,6 +4,6 @@
 // give the same samples, bit for bit.
 //
 // The package is pure Go (no file access); the amplink-workload command
-// writes its output to disk, and the benchmarks in core/recipe and
+// writes its output to disk, and the benchmarks in core/analysis and
 // core/connect build the same data in memory.
 package workload

@@ -7,6 +7,8 @@ import (
 	"strconv"
 	"testing"
 
+	"amplink/core/dataset"
+	"amplink/core/pipeline"
 	"amplink/core/recipe"
 	"amplink/core/report"
 )
@@ -58,13 +60,13 @@ func TestShapes(t *testing.T) {
 	}
 }
 
-func run(t *testing.T, src string, ds *recipe.Dataset) *report.Results {
+func run(t *testing.T, src string, ds *dataset.Dataset) *report.Results {
 	t.Helper()
 	rc, err := recipe.Parse([]byte(src))
 	if err != nil {
 		t.Fatal(err)
 	}
-	res, err := recipe.Run(context.Background(), rc, ds, nil)
+	res, err := pipeline.Run(context.Background(), rc, ds, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -84,7 +86,7 @@ func chanNum(t *testing.T, name string) int {
 // seed power of channels 1–8 predicts the target power of channels 9–16 and
 // of no other channel.
 func TestPlantedWindowCoupling(t *testing.T) {
-	res := run(t, StdRecipe, &recipe.Dataset{Name: "w", Epochs: Epochs(80, 1)})
+	res := run(t, StdRecipe, &dataset.Dataset{Name: "w", Epochs: Epochs(80, 1)})
 	if len(res.Rows) != StdChannels*StdChannels {
 		t.Fatalf("%d rows, want %d", len(res.Rows), StdChannels*StdChannels)
 	}
@@ -122,7 +124,7 @@ func TestPlantedWindowCoupling(t *testing.T) {
 // Continuous: neighbouring channels share a source at a 25 ms lag, which
 // survives orthogonalisation; channels two apart share none.
 func TestPlantedEnvelopeCoupling(t *testing.T) {
-	res := run(t, EnvelopeRecipe, &recipe.Dataset{Name: "c", Recording: Continuous(4, 500, 120, 1)})
+	res := run(t, EnvelopeRecipe, &dataset.Dataset{Name: "c", Recording: Continuous(4, 500, 120, 1)})
 	if len(res.Rows) != 6 {
 		t.Fatalf("%d rows, want 6 (all pairs of 4 channels)", len(res.Rows))
 	}

@@ -1,0 +1,90 @@
+package wire
+
+import "encoding/json"
+
+// MaxBytes is the most file bytes one worker accepts (1 GiB): wasm32 memory
+// ends at 4 GiB and running out is fatal to the worker, and decoding needs
+// room beside the raw bytes (DESIGN.md, "Memory"). The page refuses larger
+// files before reading them.
+const MaxBytes = 1 << 30
+
+// Operations a worker accepts.
+const (
+	OpDescribe = "describe" // decode the data (and events) bytes; reply OpSummary
+	OpDemo     = "demo"     // build the demo recording; reply OpSummary with Recipe set
+	OpRun      = "run"      // plan, compute this worker's share; reply OpProgress…, OpUnits
+	OpFinish   = "finish"   // combine every worker's units (after OpRun); reply OpResults
+	OpPower    = "power"    // trial-averaged time-frequency power of one channel; reply OpPower
+)
+
+// Replies a worker sends.
+const (
+	OpSummary  = "summary"
+	OpProgress = "progress"
+	OpUnits    = "units"
+	OpResults  = "results" // bufs: results.json, then each figure's SVG
+	OpError    = "error"
+	OpFatal    = "fatal" // the worker could not start
+)
+
+// Source says where a worker finds the recording.
+type Source struct {
+	Demo       bool   `json:"demo,omitempty"`       // build the demo data; no bytes
+	Name       string `json:"name,omitempty"`       // file name of the data bytes
+	EventsName string `json:"eventsName,omitempty"` // file name of the events bytes, if any
+}
+
+// Request goes from the page to a worker.
+type Request struct {
+	Op     string          `json:"op"`
+	Seq    int             `json:"seq"` // echoed in every reply, so stale replies can be dropped
+	Source Source          `json:"source"`
+	Recipe json.RawMessage `json:"recipe,omitempty"`
+
+	// OpRun: this worker is number Worker of Workers.
+	Worker  int `json:"worker,omitempty"`
+	Workers int `json:"workers,omitempty"`
+
+	// OpFinish: every unit result, as JSON lists from the OpUnits replies.
+	Units []json.RawMessage `json:"units,omitempty"`
+
+	// OpPower: the channel to show.
+	Channel string `json:"channel,omitempty"`
+}
+
+// Figure is one SVG figure.
+type Figure struct {
+	Name  string `json:"name"`
+	Title string `json:"title"`
+	SVG   string `json:"svg"`
+}
+
+// Reply goes from a worker to the page.
+type Reply struct {
+	Op    string `json:"op"`
+	Seq   int    `json:"seq"`
+	Error string `json:"error,omitempty"`
+
+	// OpSummary: the dataset summary (dataset.Summary as JSON); for the demo
+	// also the demo recipe.
+	Summary json.RawMessage `json:"summary,omitempty"`
+	Recipe  json.RawMessage `json:"recipe,omitempty"`
+
+	// OpProgress: units this worker has finished, and the units of the whole
+	// run (every worker).
+	Done  int `json:"done,omitempty"`
+	Total int `json:"total,omitempty"`
+
+	// OpUnits: this worker's unit results ([]pipeline.UnitResult as JSON).
+	Units json.RawMessage `json:"units,omitempty"`
+
+	// OpResults: results.csv text, the figures' names and titles (their SVG
+	// travels as buffers: results.json first, then one per figure), and the
+	// warnings.
+	CSV      string   `json:"csv,omitempty"`
+	Figures  []Figure `json:"figures,omitempty"`
+	Warnings []string `json:"warnings,omitempty"`
+
+	// OpPower: the figure.
+	Figure *Figure `json:"figure,omitempty"`
+}

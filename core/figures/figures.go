@@ -1,0 +1,287 @@
+package figures
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+
+	"amplink/core/analysis"
+	"amplink/core/data"
+	"amplink/core/plot"
+	"amplink/core/recipe"
+	"amplink/core/report"
+)
+
+// KindPower is the unit kind of a trial-averaged power map for figures.
+const KindPower = "tf-power"
+
+// figPowerCols bounds the columns of a power map: the time step is
+// ⌈samples/figPowerCols⌉ samples.
+const figPowerCols = 250
+
+// figPowerTargets is how many channels of one side (seed or target) of an
+// analysis get a power map when the side has more.
+const figPowerTargets = 3
+
+// figStretch is the length in seconds of the envelope time-course figure
+// for continuous input (epoched input shows the first trial).
+const figStretch = 20.0
+
+// figClusterP is the cluster p at or below which a cluster is outlined.
+const figClusterP = 0.05
+
+// figPowerStep is the time decimation of a power map of n samples.
+func figPowerStep(n int) int { return max(1, (n+figPowerCols-1)/figPowerCols) }
+
+// Plan is the figures of one analysis plan: the power maps that can be
+// computed before the results exist, as units, and the drawing once they
+// do. With figures off in the recipe it has no units and draws nothing.
+type Plan struct {
+	ap    *analysis.Plan
+	units []powerUnit // unit i computes the power map of units[i].ch
+}
+
+type powerUnit struct {
+	analysis.Unit
+	ch int
+}
+
+// NewPlan lists the power-map units that the figures of ap need whatever
+// the results: the maps of every seed channel, and of the target channels
+// of a side with few.
+func NewPlan(ap *analysis.Plan) *Plan {
+	p := &Plan{ap: ap}
+	e := ap.Dataset().Epochs
+	if !ap.Recipe().Figures.Enabled || e == nil {
+		return p
+	}
+	for i := range ap.Recipe().Analyses {
+		seeds, targets := ap.Sides(i)
+		for _, side := range [][]int{seeds, targets} {
+			if len(side) <= figPowerTargets {
+				for _, ch := range side {
+					p.addPowerUnit(e, ch)
+				}
+			}
+		}
+	}
+	return p
+}
+
+// addPowerUnit adds the unit computing the power map of channel ch, unless
+// there is one.
+func (p *Plan) addPowerUnit(e *data.Epochs, ch int) {
+	if p.findPower(ch) >= 0 {
+		return
+	}
+	all := p.allFreqs()
+	n := e.NSamples
+	p.units = append(p.units, powerUnit{
+		Unit: analysis.Unit{ID: len(p.units), Kind: KindPower, Channels: []string{e.Channels[ch].Name},
+			Cost: float64(e.NTrials * (n + p.ap.Bank().MaxHalf(all)) * (1 + len(all)))},
+		ch: ch,
+	})
+}
+
+func (p *Plan) findPower(ch int) int {
+	for ui := range p.units {
+		if p.units[ui].ch == ch {
+			return ui
+		}
+	}
+	return -1
+}
+
+func (p *Plan) allFreqs() []int {
+	all := make([]int, len(p.ap.Freqs()))
+	for i := range all {
+		all[i] = i
+	}
+	return all
+}
+
+// Units lists the figure units, numbered from 0, in a fixed order.
+func (p *Plan) Units() []analysis.Unit {
+	out := make([]analysis.Unit, len(p.units))
+	for i, u := range p.units {
+		out[i] = u.Unit
+	}
+	return out
+}
+
+// Compute runs figure unit id: one channel's power map, row after row.
+func (p *Plan) Compute(ctx context.Context, id int) (analysis.UnitResult, error) {
+	if id < 0 || id >= len(p.units) {
+		return analysis.UnitResult{}, fmt.Errorf("figures: no unit %d", id)
+	}
+	m, err := powerMap(ctx, p.ap, p.units[id].ch)
+	if err != nil {
+		return analysis.UnitResult{}, err
+	}
+	var out []float64
+	for _, row := range m {
+		out = append(out, row...)
+	}
+	return analysis.UnitResult{ID: id, Values: out}, nil
+}
+
+// figDraw collects the figures of one run.
+type figDraw struct {
+	p      *Plan
+	ap     *analysis.Plan
+	ctx    context.Context
+	res    []analysis.UnitResult // the analysis units' results
+	figRes []analysis.UnitResult // the figure units' results, by ID
+	out    *report.Results
+	names  map[string]int
+	power  map[int][][]float64 // channel → power map computed while drawing
+}
+
+// add appends a figure, making its name a safe file name and unique.
+func (d *figDraw) add(name, title, svg string) {
+	name = report.SafeName(name, '-')
+	if k := d.names[name]; k > 0 {
+		d.names[name] = k + 1
+		name += "-" + strconv.Itoa(k+1)
+	} else {
+		d.names[name] = 1
+	}
+	d.out.Figures = append(d.out.Figures, report.Figure{Name: name, Title: title, SVG: svg})
+}
+
+// Draw renders the figures of every analysis into out.Figures, from the
+// results Finish made of res (the analysis units' results) and figRes (the
+// figure units' results, one per unit of Units).
+func (p *Plan) Draw(ctx context.Context, res, figRes []analysis.UnitResult, out *report.Results) error {
+	if !p.ap.Recipe().Figures.Enabled {
+		return nil
+	}
+	if len(figRes) != len(p.units) {
+		return fmt.Errorf("figures: %d unit results for %d units", len(figRes), len(p.units))
+	}
+	sorted := make([]analysis.UnitResult, len(figRes))
+	seen := make([]bool, len(figRes))
+	for _, r := range figRes {
+		if r.ID < 0 || r.ID >= len(figRes) || seen[r.ID] {
+			return fmt.Errorf("figures: unit result %d is out of range or repeated", r.ID)
+		}
+		seen[r.ID] = true
+		sorted[r.ID] = r
+	}
+	d := &figDraw{p: p, ap: p.ap, ctx: ctx, res: res, figRes: sorted, out: out, names: map[string]int{}, power: map[int][][]float64{}}
+	if err := d.prefetch(); err != nil {
+		return err
+	}
+	for i := range p.ap.Recipe().Analyses {
+		if err := ctx.Err(); err != nil {
+			return err
+		}
+		a := &p.ap.Recipe().Analyses[i]
+		var err error
+		if tw, ok := p.ap.TrialWindow(i); ok {
+			if err = d.powerFigures(i); err == nil {
+				err = d.scatterFigures(tw)
+			}
+		} else if ev, ok := p.ap.Envelope(i); ok {
+			if ev.Comodulogram() {
+				d.comodulogram(ev)
+			} else {
+				d.matrix(ev)
+				err = d.envelopes(ev)
+			}
+		} else if a.Type == recipe.TypeTFMap {
+			if err = d.powerFigures(i); err == nil {
+				d.tfCorr(i)
+			}
+		}
+		if err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// unitSquared is the square of a channel's unit: µV² for µV.
+func unitSquared(ch data.Channel) string {
+	switch strings.TrimSpace(ch.Unit) {
+	case "µV", "μV", "uV":
+		return "µV²"
+	case "":
+		return "unit²"
+	}
+	return strings.TrimSpace(ch.Unit) + "²"
+}
+
+// figFrame is a w × h frame, widened (up to 640) so that a one-line bold
+// title fits: its width is estimated from average sans-serif glyph widths
+// at the 10-unit title size.
+func figFrame(title string, w, h float64) plot.Frame {
+	est := 0.0
+	for _, r := range title {
+		switch {
+		case strings.ContainsRune(" .,:;il|'()[]-ftjr", r):
+			est += 0.34
+		case r >= 'A' && r <= 'Z', r == 'm', r == 'w':
+			est += 0.75
+		default:
+			est += 0.6
+		}
+	}
+	return plot.Frame{Title: title, Width: min(max(w, est*10+24), 640), Height: h}
+}
+
+func contains(s []int, v int) bool {
+	for _, x := range s {
+		if x == v {
+			return true
+		}
+	}
+	return false
+}
+
+// figSec formats a time in s for a figure, with a true minus sign.
+func figSec(t float64) string {
+	return strings.Replace(strconv.FormatFloat(analysis.RoundTime(t), 'f', -1, 64), "-", "−", 1)
+}
+
+// figHz formats a frequency in Hz for a figure: three significant digits,
+// or a whole number from 100 Hz.
+func figHz(f float64) string {
+	if math.Abs(f) >= 100 {
+		return strconv.FormatFloat(math.Round(f), 'f', -1, 64)
+	}
+	return strconv.FormatFloat(f, 'g', 3, 64)
+}
+
+// figBand is "lo–hi Hz" of grid frequencies, lowest first.
+func figBand(freqs []float64) string {
+	lo, hi := freqs[0], freqs[len(freqs)-1]
+	if lo == hi {
+		return figHz(lo) + " Hz"
+	}
+	return figHz(lo) + "–" + figHz(hi) + " Hz"
+}
+
+func findMap(out *report.Results, name string) *report.Map {
+	for i := range out.Maps {
+		if out.Maps[i].Name == name {
+			return &out.Maps[i]
+		}
+	}
+	return nil
+}
+
+// squareMap reports whether m is a rows × cols matrix.
+func squareMap(m *report.Map, rows, cols int) bool {
+	if m == nil || len(m.Values) != rows {
+		return false
+	}
+	for _, r := range m.Values {
+		if len(r) != cols {
+			return false
+		}
+	}
+	return true
+}
