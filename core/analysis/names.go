@@ -26,14 +26,9 @@ type (
 
 // The analysis types and leakage corrections, as the recipe names them.
 const (
-	TypeTrialWindow  = recipe.TypeTrialWindow
-	TypeTFMap        = recipe.TypeTFMap
-	TypeEnvelope     = recipe.TypeEnvelope
-	TypeComodulogram = recipe.TypeComodulogram
-
-	OrthNone      = recipe.OrthNone
-	OrthPairwise  = recipe.OrthPairwise
-	OrthSymmetric = recipe.OrthSymmetric
+	TypeTrialWindow, TypeTFMap            = recipe.TypeTrialWindow, recipe.TypeTFMap
+	TypeEnvelope, TypeComodulogram        = recipe.TypeEnvelope, recipe.TypeComodulogram
+	OrthNone, OrthPairwise, OrthSymmetric = recipe.OrthNone, recipe.OrthPairwise, recipe.OrthSymmetric
 )
 
 // ferr is a recipe field error: the analyses refuse a recipe that does not

@@ -285,6 +285,19 @@ func Run(ctx context.Context, r *Recipe, ds *Dataset, progress func(done, total 
 	if err != nil {
 		return nil, err
 	}
+	return RunPlan(ctx, p, progress)
+}
+
+// Runner is a plan whose units compute independently and then finish
+// together: an analysis Plan, or a pipeline's analyses with their figures.
+type Runner interface {
+	ComputeAll(ctx context.Context, workers int, progress func(done, total int)) ([]UnitResult, error)
+	Finish(ctx context.Context, res []UnitResult) (*report.Results, error)
+}
+
+// RunPlan computes every unit of p on up to GOMAXPROCS goroutines, then
+// finishes it.
+func RunPlan(ctx context.Context, p Runner, progress func(done, total int)) (*report.Results, error) {
 	res, err := p.ComputeAll(ctx, runtime.GOMAXPROCS(0), progress)
 	if err != nil {
 		return nil, err

@@ -12,7 +12,6 @@ package pipeline
 import (
 	"context"
 	"fmt"
-	"runtime"
 
 	"amplink/core/analysis"
 	"amplink/core/dataset"
@@ -115,9 +114,5 @@ func Run(ctx context.Context, r *recipe.Recipe, ds *dataset.Dataset, progress fu
 	if err != nil {
 		return nil, err
 	}
-	res, err := p.ComputeAll(ctx, runtime.GOMAXPROCS(0), progress)
-	if err != nil {
-		return nil, err
-	}
-	return p.Finish(ctx, res)
+	return analysis.RunPlan(ctx, p, progress)
 }
