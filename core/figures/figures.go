@@ -111,12 +111,28 @@ func (p *Plan) Units() []analysis.Unit {
 	return out
 }
 
-// Compute runs figure unit id: one channel's power map, row after row.
+// Compute runs figure unit id of Units: one channel's power map, row after
+// row.
 func (p *Plan) Compute(ctx context.Context, id int) (analysis.UnitResult, error) {
 	if id < 0 || id >= len(p.units) {
 		return analysis.UnitResult{}, fmt.Errorf("figures: no unit %d", id)
 	}
-	m, err := powerMap(ctx, p.ap, p.units[id].ch)
+	return p.ComputeUnit(ctx, p.units[id].Unit)
+}
+
+// ComputeUnit runs a unit of Units or of Late from its description alone
+// (the power map of its one channel), so that a worker that has the plan but
+// not the results can compute a late unit.
+func (p *Plan) ComputeUnit(ctx context.Context, u analysis.Unit) (analysis.UnitResult, error) {
+	e := p.ap.Dataset().Epochs
+	if u.Kind != KindPower || len(u.Channels) != 1 || e == nil {
+		return analysis.UnitResult{}, fmt.Errorf("figures: unit %d is not a power map of one channel", u.ID)
+	}
+	ch := data.Lookup(e.Channels, u.Channels[0])
+	if ch < 0 {
+		return analysis.UnitResult{}, fmt.Errorf("figures: unit %d: no channel %q", u.ID, u.Channels[0])
+	}
+	m, err := powerMap(ctx, p.ap, ch)
 	if err != nil {
 		return analysis.UnitResult{}, err
 	}
@@ -124,7 +140,27 @@ func (p *Plan) Compute(ctx context.Context, id int) (analysis.UnitResult, error)
 	for _, row := range m {
 		out = append(out, row...)
 	}
-	return analysis.UnitResult{ID: id, Values: out}, nil
+	return analysis.UnitResult{ID: u.ID, Values: out}, nil
+}
+
+// Late lists the power-map units that only the results can choose (the
+// channels of the strongest rows, on a side with more than figPowerTargets
+// channels) and that no unit of Units computes, numbered after Units. Draw
+// computes any of them whose result it is not given, so the command line
+// never calls Late; the page spreads them over its workers.
+func (p *Plan) Late(out *report.Results) []analysis.Unit {
+	if !p.ap.Recipe().Figures.Enabled {
+		return nil
+	}
+	d := &figDraw{p: p, ap: p.ap, out: out}
+	e := p.ap.Dataset().Epochs
+	all := p.allFreqs()
+	var units []analysis.Unit
+	for _, ch := range d.lateChannels() {
+		units = append(units, analysis.Unit{ID: len(p.units) + len(units), Kind: KindPower, Channels: []string{e.Channels[ch].Name},
+			Cost: float64(e.NTrials * (e.NSamples + p.ap.Bank().MaxHalf(all)) * (1 + len(all)))})
+	}
+	return units
 }
 
 // figDraw collects the figures of one run.
@@ -152,25 +188,37 @@ func (d *figDraw) add(name, title, svg string) {
 }
 
 // Draw renders the figures of every analysis into out.Figures, from the
-// results Finish made of res (the analysis units' results) and figRes (the
-// figure units' results, one per unit of Units).
+// results Finish made of res (the analysis units' results) and figRes: one
+// result for each unit of Units, and any number of the units of Late (those
+// missing are computed here, in parallel).
 func (p *Plan) Draw(ctx context.Context, res, figRes []analysis.UnitResult, out *report.Results) error {
 	if !p.ap.Recipe().Figures.Enabled {
 		return nil
 	}
-	if len(figRes) != len(p.units) {
-		return fmt.Errorf("figures: %d unit results for %d units", len(figRes), len(p.units))
-	}
-	sorted := make([]analysis.UnitResult, len(figRes))
-	seen := make([]bool, len(figRes))
+	late := p.Late(out)
+	early := make([]analysis.UnitResult, len(p.units))
+	seen := make([]bool, len(p.units)+len(late))
+	d := &figDraw{p: p, ap: p.ap, ctx: ctx, res: res, figRes: early, out: out, names: map[string]int{}, power: map[int][][]float64{}}
 	for _, r := range figRes {
-		if r.ID < 0 || r.ID >= len(figRes) || seen[r.ID] {
+		if r.ID < 0 || r.ID >= len(seen) || seen[r.ID] {
 			return fmt.Errorf("figures: unit result %d is out of range or repeated", r.ID)
 		}
 		seen[r.ID] = true
-		sorted[r.ID] = r
+		if r.ID < len(early) {
+			early[r.ID] = r
+			continue
+		}
+		m, err := d.asMap(r)
+		if err != nil {
+			return err
+		}
+		d.power[data.Lookup(p.ap.Dataset().Epochs.Channels, late[r.ID-len(early)].Channels[0])] = m
 	}
-	d := &figDraw{p: p, ap: p.ap, ctx: ctx, res: res, figRes: sorted, out: out, names: map[string]int{}, power: map[int][][]float64{}}
+	for id := range early {
+		if !seen[id] {
+			return fmt.Errorf("figures: no result for unit %d", id)
+		}
+	}
 	if err := d.prefetch(); err != nil {
 		return err
 	}

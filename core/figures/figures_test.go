@@ -627,3 +627,69 @@ func TestFiguresManyChannels(t *testing.T) {
 		t.Errorf("%d scatters, want one per row (16)", scatters)
 	}
 }
+
+// The late power maps (chosen from the rows) may be computed anywhere, as
+// the page's workers do: passed to Draw, they give the same figures, byte
+// for byte, as Draw computing them itself; a result of the wrong size, or
+// for no unit, is refused.
+func TestFiguresLateUnits(t *testing.T) {
+	rc := `{"spectral": {"low": 4, "high": 30, "steps": 8, "cycles": [3, 6]},
+	  "analyses": [{"id": "all", "type": "trial-window",
+	    "seed":   {"channel": "A", "time": [-0.5, -0.1], "freq": [16, 24]},
+	    "target": {"channel": "*", "time": [0.3, 0.7], "freq": [5, 7]}}]}`
+	p, want := runFig(t, rc, &dataset.Dataset{Name: "synth", Epochs: synth.Confounded(30)}, 2)
+	ctx := context.Background()
+	units := p.Units()
+	res := make([]pipeline.UnitResult, len(units))
+	for i := range units {
+		var err error
+		if res[i], err = p.Compute(ctx, i); err != nil {
+			t.Fatal(err)
+		}
+	}
+	na := len(p.Analysis.Units())
+	ar, early := res[:na], slices.Clone(res[na:])
+	for i := range early {
+		early[i].ID -= na
+	}
+	out, err := p.Analysis.Finish(ctx, ar)
+	if err != nil {
+		t.Fatal(err)
+	}
+	late := p.Figures.Late(out)
+	// the seed A has a unit of its own; the targets' three strongest are late
+	if len(early) != 1 || len(late) != 3 {
+		t.Fatalf("%d early and %d late units, want 1 and 3", len(early), len(late))
+	}
+	figRes := early
+	for _, u := range late {
+		if u.ID < len(early) || u.Kind != figures.KindPower {
+			t.Fatalf("late unit %+v", u)
+		}
+		r, err := p.Figures.ComputeUnit(ctx, u)
+		if err != nil {
+			t.Fatal(err)
+		}
+		figRes = append(figRes, r)
+	}
+	if err := p.Figures.Draw(ctx, ar, figRes, out); err != nil {
+		t.Fatal(err)
+	}
+	if len(out.Figures) != len(want.Figures) {
+		t.Fatalf("%d figures, want %d", len(out.Figures), len(want.Figures))
+	}
+	for i := range out.Figures {
+		if out.Figures[i] != want.Figures[i] {
+			t.Errorf("figure %s differs from the one Draw computed itself", out.Figures[i].Name)
+		}
+	}
+	bad := slices.Clone(figRes)
+	bad[len(bad)-1].Values = bad[len(bad)-1].Values[1:]
+	if err := p.Figures.Draw(ctx, ar, bad, &report.Results{Rows: out.Rows}); err == nil || !strings.Contains(err.Error(), "values, want") {
+		t.Errorf("a short late map: error %v", err)
+	}
+	extra := append(slices.Clone(figRes), pipeline.UnitResult{ID: len(early) + len(late)})
+	if err := p.Figures.Draw(ctx, ar, extra, &report.Results{Rows: out.Rows}); err == nil || !strings.Contains(err.Error(), "out of range") {
+		t.Errorf("a result for no unit: error %v", err)
+	}
+}

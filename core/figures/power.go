@@ -52,6 +52,21 @@ func powerMap(ctx context.Context, ap *analysis.Plan, ch int) ([][]float64, erro
 	return pow, nil
 }
 
+// asMap checks that a power-map unit's result has rows × cols values for
+// the grid and the epoch, and returns it as rows.
+func (d *figDraw) asMap(r analysis.UnitResult) ([][]float64, error) {
+	e := d.ap.Dataset().Epochs
+	rows, cols := len(d.ap.Freqs()), spectral.TFCols(0, e.NSamples, figPowerStep(e.NSamples))
+	if len(r.Values) != rows*cols {
+		return nil, fmt.Errorf("figures: power map of unit %d has %d values, want %d×%d", r.ID, len(r.Values), rows, cols)
+	}
+	m := make([][]float64, rows)
+	for i := range m {
+		m[i] = r.Values[i*cols : (i+1)*cols]
+	}
+	return m, nil
+}
+
 // strongChannels returns the seed (or target) channels, among cands, of the
 // k rows of analysis id with the largest |r| (first in table order on
 // ties), in that order, each once.
@@ -99,20 +114,10 @@ func (d *figDraw) strongChannels(id string, seed bool, cands []int, k int) []int
 }
 
 // powerMapOf returns the power map of channel ch: the unit's when there is
-// one, otherwise the one prefetch computed.
+// one, otherwise the late one (given to Draw, or computed by prefetch).
 func (d *figDraw) powerMapOf(ch int) ([][]float64, error) {
-	e := d.ap.Dataset().Epochs
-	rows, cols := len(d.ap.Freqs()), spectral.TFCols(0, e.NSamples, figPowerStep(e.NSamples))
 	if ui := d.p.findPower(ch); ui >= 0 {
-		v := d.figRes[ui].Values
-		if len(v) != rows*cols {
-			return nil, fmt.Errorf("figures: power map of unit %d has %d values, want %d×%d", ui, len(v), rows, cols)
-		}
-		m := make([][]float64, rows)
-		for r := range m {
-			m[r] = v[r*cols : (r+1)*cols]
-		}
-		return m, nil
+		return d.asMap(d.figRes[ui])
 	}
 	if m, ok := d.power[ch]; ok {
 		return m, nil
@@ -154,8 +159,9 @@ func (d *figDraw) powerChannels(i int) (chans []int, byRule map[int]bool) {
 	return chans, byRule
 }
 
-// prefetch computes, in parallel, the power maps that no unit computed.
-func (d *figDraw) prefetch() error {
+// lateChannels lists, in a fixed order, the channels whose power map the
+// figures draw but no unit of Units computes: those chosen from the rows.
+func (d *figDraw) lateChannels() []int {
 	if d.ap.Dataset().Epochs == nil {
 		return nil
 	}
@@ -168,6 +174,18 @@ func (d *figDraw) prefetch() error {
 				seen[c] = true
 				need = append(need, c)
 			}
+		}
+	}
+	return need
+}
+
+// prefetch computes, in parallel, the late power maps whose results Draw
+// was not given.
+func (d *figDraw) prefetch() error {
+	var need []int
+	for _, c := range d.lateChannels() {
+		if _, ok := d.power[c]; !ok {
+			need = append(need, c)
 		}
 	}
 	maps := make([][][]float64, len(need))
