@@ -6,6 +6,7 @@ import (
 	"encoding/base64"
 	"encoding/json"
 	"errors"
+	"fmt"
 	"math"
 	"os"
 	"path/filepath"
@@ -145,7 +146,7 @@ func TestFormRoundTrip(t *testing.T) {
 	f.AddAnalysis(recipe.TypeEnvelope)
 	for k, v := range map[string]string{
 		"analyses.1.channels": "P3, P4, O1", "analyses.1.freq.0": "8", "analyses.1.freq.1": "12",
-		"analyses.1.orthogonalize": "symmetric", "analyses.1.trials": "concatenate",
+		"analyses.1.leakageCorrection": "symmetric", "analyses.1.trials": "concatenate",
 	} {
 		f.set(k, v)
 	}
@@ -414,7 +415,7 @@ func FuzzFormFromJSON(f *testing.F) {
 }
 
 // TestFragmentFromZlib reads a link made by Python's zlib (raw DEFLATE,
-// wbits −15, level 9; Python 3.11.7, zlib 1.2.13) and
+// wbits −15, level 9; Python 3.11.2, zlib 1.2.13) and
 // base64.urlsafe_b64encode without padding:
 // testdata/demo.fragment holds core/demo/recipe.json encoded that way.
 func TestFragmentFromZlib(t *testing.T) {
@@ -454,13 +455,13 @@ func TestRowsHTML(t *testing.T) {
 // every column, it shows them all.
 func TestVisible(t *testing.T) {
 	tb := Table{
-		Header: []string{"analysis", "type", "seed", "target", "method", "n", "r", "p", "seed_tmin", "p_perm", "q", "note", "df"},
+		Header: []string{"analysis", "type", "seed", "target", "method", "n", "r", "p", "seed_from_s", "p_perm", "q", "note", "df"},
 		Rows: [][]string{
 			{"a", "trial-window", "C4", "Pz", "spearman", "40", "0.5", "0.001", "-0.5", "", "0.01", "", "38"},
 			{"a", "trial-window", "C4", "Oz", "spearman", "40", "0.1", "0.5", "-0.5", "", "0.5", "", "38"},
 		},
 	}
-	want := []int{0, 1, 2, 3, 4, 5, 6, 7, 10} // q has values; p_perm and note are empty; seed_tmin and df are details
+	want := []int{0, 1, 2, 3, 4, 5, 6, 7, 10} // q has values; p_perm and note are empty; seed_from_s and df are details
 	if got := tb.Visible(false); !reflect.DeepEqual(got, want) {
 		t.Errorf("main columns %v, want %v", got, want)
 	}
@@ -499,5 +500,39 @@ func TestFormFigures(t *testing.T) {
 	}
 	if r, err := recipe.Parse(NewForm().JSON()); err == nil && !r.Figures.Enabled {
 		t.Error("a new form does not draw figures")
+	}
+}
+
+// TestFormLeakageCorrection: "none" and an absent key both show as none and
+// write no key; a dropped recipe or link with a renamed key gets the error
+// that names the new one, not a silently dropped setting.
+func TestFormLeakageCorrection(t *testing.T) {
+	const env = `{"analyses": [{"type": "envelope", "channels": ["O1", "O2"], "freq": [8, 12]%s}]}`
+	for _, c := range []struct{ in, form, key string }{
+		{"", "", ""},
+		{`, "leakageCorrection": "none"`, "", ""},
+		{`, "leakageCorrection": "pairwise"`, "pairwise", `"leakageCorrection":"pairwise"`},
+		{`, "leakageCorrection": "symmetric"`, "symmetric", `"leakageCorrection":"symmetric"`},
+	} {
+		f, err := FormFromJSON([]byte(fmt.Sprintf(env, c.in)))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got := f.get("analyses.0.leakageCorrection"); got != c.form {
+			t.Errorf("%s: form holds %q, want %q", c.in, got, c.form)
+		}
+		js := string(f.JSON())
+		if c.key == "" && strings.Contains(js, "leakageCorrection") || c.key != "" && !strings.Contains(js, c.key) {
+			t.Errorf("%s: the form writes %s", c.in, js)
+		}
+	}
+	for _, c := range []struct{ in, want string }{
+		{`, "orthogonalize": true`, `analyses[0].orthogonalize: this key is now "leakageCorrection"`},
+		{`, "clusterThreshold": 0.01`, `analyses[0].clusterThreshold: this key is now "clusterFormingP"`},
+	} {
+		_, err := FormFromJSON([]byte(fmt.Sprintf(env, c.in)))
+		if err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%s: error %v, want %q", c.in, err, c.want)
+		}
 	}
 }

@@ -22,7 +22,7 @@ const (
 	kNames              // a channel name, comma-separated names, or "*"
 	kList               // comma-separated strings, always a JSON list
 	kChoice             // one of Choices, a string; "" = absent
-	kOrth               // "", "pairwise" or "symmetric" → false/absent, true, "symmetric"
+	kOrth               // leakage correction: "" (shown as none; absent), "pairwise" or "symmetric"
 	kBool               // "on" or ""
 )
 
@@ -83,7 +83,7 @@ var analysisFields = []field{
 	{Key: "target.time.1", Kind: kNum, Label: "Target to (s)", Types: windowTypes},
 	{Key: "target.freq.0", Kind: kNum, Label: "Target band low (Hz)", Types: windowTypes},
 	{Key: "target.freq.1", Kind: kNum, Label: "Target band high (Hz)", Types: windowTypes},
-	{Key: "clusterThreshold", Kind: kNum, Label: "Cluster-forming p", Types: []string{recipe.TypeTFMap}},
+	{Key: "clusterFormingP", Kind: kNum, Label: "Cluster-forming p", Types: []string{recipe.TypeTFMap}},
 	{Key: "timeStep", Kind: kNum, Label: "Map time step (s)", Types: []string{recipe.TypeTFMap}},
 
 	{Key: "channels", Kind: kNames, Label: "Channels", Types: envelopeTypes, Hint: "names separated by commas, or * for all", Wide: true},
@@ -91,7 +91,7 @@ var analysisFields = []field{
 	{Key: "freq.1", Kind: kNum, Label: "Envelope band high (Hz)", Types: envelopeTypes},
 	{Key: "targetFreq.0", Kind: kNum, Label: "Second band low (Hz)", Types: envelopeTypes, Hint: "optional: cross-frequency"},
 	{Key: "targetFreq.1", Kind: kNum, Label: "Second band high (Hz)", Types: envelopeTypes},
-	{Key: "orthogonalize", Kind: kOrth, Label: "Leakage correction", Choices: []string{"", "pairwise", "symmetric"}, Types: envelopeTypes},
+	{Key: "leakageCorrection", Kind: kOrth, Label: "Leakage correction", Choices: []string{"", "pairwise", "symmetric"}, Types: envelopeTypes},
 	{Key: "segment", Kind: kNum, Label: "Segment length (s)", Types: envelopeTypes, Hint: "optional: r over time"},
 	{Key: "envelopeRate", Kind: kNum, Label: "Envelope rate (Hz)", Types: envelopeTypes},
 	{Key: "trials", Kind: kChoice, Label: "Trials", Choices: []string{"average", "concatenate"}, Types: envelopeTypes},
@@ -245,11 +245,8 @@ func jsonValue(k kind, s string) (any, bool) {
 		}
 		return out, true
 	case kOrth:
-		switch s {
-		case "pairwise":
-			return true, true
-		case "symmetric":
-			return "symmetric", true
+		if s == "pairwise" || s == "symmetric" {
+			return s, true
 		}
 		return nil, false
 	case kBool:
@@ -358,6 +355,9 @@ func FormFromJSON(b []byte) (*Form, error) {
 		if !ok {
 			continue
 		}
+		if err := recipe.CheckRenamed(fmt.Sprintf("analyses[%d]", i), func(k string) bool { _, ok := a[k]; return ok }); err != nil {
+			return nil, err
+		}
 		pre := fmt.Sprintf("analyses.%d.", i)
 		for _, fd := range analysisFields {
 			f.set(pre+fd.Key, lookup(a, fd.Key, fd.Kind))
@@ -391,16 +391,13 @@ func textValue(v any, k kind) string {
 	case nil:
 		return ""
 	case string:
+		if k == kOrth && t == "none" {
+			return ""
+		}
 		return t
 	case json.Number:
 		return t.String()
 	case bool:
-		if k == kOrth {
-			if t {
-				return "pairwise"
-			}
-			return ""
-		}
 		if t {
 			return "on"
 		}

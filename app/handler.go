@@ -40,7 +40,7 @@ func Handler(version string) *goapp.Handler {
 		Lang:            "en",
 		BackgroundColor: "#fbfaf7",
 		ThemeColor:      "#1f3a4d",
-		LoadingLabel:    "Loading amplink {progress}%",
+		LoadingLabel:    LoadingLabel,
 		Version:         version,
 		Resources:       relative{},
 		Icon: goapp.Icon{

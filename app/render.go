@@ -289,7 +289,7 @@ func (p *Page) renderAnalysis(i int) goapp.UI {
 			continue
 		}
 		switch fd.Key {
-		case "seed.channel", "target.channel", "channels", "permutations", "covariates", "orthogonalize":
+		case "seed.channel", "target.channel", "channels", "permutations", "covariates", "leakageCorrection":
 			group()
 		}
 		cur = append(cur, fd)
@@ -374,7 +374,7 @@ func (p *Page) inputs(pre string, fields []field, typ string) []goapp.UI {
 			input = in
 		}
 		var note goapp.UI
-		if fd.Key == "orthogonalize" {
+		if fd.Key == "leakageCorrection" {
 			note = goapp.Span().Class("note").Text("Removes the zero-lag part that volume conduction or field spread adds — and with it any genuine zero-lag coupling.")
 		}
 		if fd.Kind == kBool {

@@ -85,11 +85,11 @@ const resultsBody = "results-body"
 // and bands, which the form shows) and bookkeeping. results.csv always has
 // them all.
 var detailCols = map[string]bool{
-	"seed_tmin": true, "seed_tmax": true, "seed_fmin": true, "seed_fmax": true,
-	"target_tmin": true, "target_tmax": true, "target_fmin": true, "target_fmax": true,
-	"band_fmin": true, "band_fmax": true, "target_band_fmin": true, "target_band_fmax": true,
+	"seed_from_s": true, "seed_to_s": true, "seed_low_hz": true, "seed_high_hz": true,
+	"target_from_s": true, "target_to_s": true, "target_low_hz": true, "target_high_hz": true,
+	"band_low_hz": true, "band_high_hz": true, "target_band_low_hz": true, "target_band_high_hz": true,
 	"df": true, "p_method": true, "permutations": true, "correction": true, "ci_level": true,
-	"threshold_t": true, "orthogonalize": true, "over": true, "envelope_rate": true,
+	"cluster_forming_t": true, "leakage_correction": true, "over": true, "envelope_rate": true,
 	"edge_discard_s": true, "surrogates": true,
 }
 

@@ -30,7 +30,7 @@ func TestDemoRoutesAgree(t *testing.T) {
   "analyses": [
     {"id": "tw", "type": "trial-window", "seed": {"channel": "C4", "time": [-0.5, -0.1], "freq": [15, 25]},
      "target": {"channel": ["Pz", "Fz", "O1"], "time": [0.3, 0.8], "freq": [1.5, 3.5]}},
-    {"id": "env", "type": "envelope", "channels": ["O1", "O2", "P3"], "freq": [8, 12], "orthogonalize": true, "over": "epochs"}
+    {"id": "env", "type": "envelope", "channels": ["O1", "O2", "P3"], "freq": [8, 12], "leakageCorrection": "pairwise", "over": "epochs"}
   ]
 }`), 0o644)
 	routes := []string{"demo_epochs.csv", "demo_epochs.f32", "demo_continuous.csv", "demo_edf.edf", "demo_wav.wav"}

@@ -209,7 +209,11 @@ func buildSite(out, src string) (siteStats, error) {
 		if err != nil {
 			return st, fmt.Errorf("site: %v", err)
 		}
-		if err := os.WriteFile(p, relativize(n, b), 0o644); err != nil {
+		b = relativize(n, b)
+		if b, err = ownLooks(n, b); err != nil {
+			return st, fmt.Errorf("site: %v", err)
+		}
+		if err := os.WriteFile(p, b, 0o644); err != nil {
 			return st, err
 		}
 	}
@@ -261,6 +265,22 @@ func relativize(name string, b []byte) []byte {
 		s = strings.ReplaceAll(s, `"start_url": "/"`, `"start_url": "./"`)
 	}
 	return []byte(s)
+}
+
+// ownLooks gives a generated file the page's own loading view in place of
+// go-app's stock one (see app.OwnLoadingView).
+func ownLooks(name string, b []byte) ([]byte, error) {
+	var s string
+	var err error
+	switch name {
+	case "index.html":
+		s, err = app.OwnLoadingView(string(b))
+	case "app.js":
+		s, err = app.OwnLoadingScript(string(b))
+	default:
+		return b, nil
+	}
+	return []byte(s), err
 }
 
 // sortAttrs puts the attributes of every start tag in name order: go-app

@@ -330,3 +330,31 @@ func TestSiteScriptOrder(t *testing.T) {
 		t.Fatalf("script order: wasm_exec.js at %d, web/start.js at %d, app.js at %d; want them in that order", exec, start, appJS)
 	}
 }
+
+// TestSiteLoadingView: the written page shows its own loading view, not
+// go-app's stock one, and app.js marks a failed start with the page's class.
+func TestSiteLoadingView(t *testing.T) {
+	dir, _ := testSite(t)
+	idx, err := os.ReadFile(filepath.Join(dir, "index.html"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	js, err := os.ReadFile(filepath.Join(dir, "app.js"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if i := strings.Index(string(idx), "goapp-"); i >= 0 {
+		t.Errorf("index.html still has a go-app class: %q", idx[i:min(len(idx), i+60)])
+	}
+	for _, want := range []string{`class="starting" id="app-wasm-loader"`, `id="app-wasm-loader-label">Getting the analysis ready on this computer: 0%<`} {
+		if !strings.Contains(string(idx), want) {
+			t.Errorf("index.html lacks %s", want)
+		}
+	}
+	if !strings.Contains(string(js), `"starting-mark starting-failed"`) || strings.Contains(string(js), `"goapp-logo"`) {
+		t.Error("app.js does not mark a failed start with the page's own class")
+	}
+	if !strings.Contains(string(js), `const goappLoadingLabel = "Getting the analysis ready on this computer: {progress}%"`) {
+		t.Error("app.js does not carry the page's loading words")
+	}
+}

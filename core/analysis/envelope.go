@@ -109,7 +109,7 @@ func (p *Plan) planEnvelope(path string, a *Analysis) (finisher, error) {
 		return nil, ferr(path+".channels", "needs at least two channels (or a targetFreq band for one channel)")
 	}
 	if a.Orthogonalize == OrthSymmetric && len(ep.chans) < 2 {
-		return nil, ferr(path+".orthogonalize", "symmetric orthogonalisation needs at least two channels")
+		return nil, ferr(path+".leakageCorrection", "symmetric orthogonalisation needs at least two channels")
 	}
 	switch {
 	case ep.como:
@@ -158,7 +158,7 @@ func (p *Plan) planEnvelope(path string, a *Analysis) (finisher, error) {
 		}
 		total = e.NTrials * (keep / ep.bin)
 		if a.Orthogonalize == OrthSymmetric && keep < len(ep.chans) {
-			return nil, ferr(path+".orthogonalize", "symmetric orthogonalisation needs more samples per trial (%d) than channels (%d)", keep, len(ep.chans))
+			return nil, ferr(path+".leakageCorrection", "symmetric orthogonalisation needs more samples per trial (%d) than channels (%d)", keep, len(ep.chans))
 		}
 		for t := range e.NTrials {
 			ep.units = append(ep.units, p.envUnit(ep, t, [2]int{half, e.NSamples - half}))
@@ -170,7 +170,7 @@ func (p *Plan) planEnvelope(path string, a *Analysis) (finisher, error) {
 			return nil, ferr(path, "%s (%g s) is too short for the %s Hz wavelet", p.ds.Name, float64(n)/ep.rate, fmtHz(p.freqs[ep.fa[0]]))
 		}
 		if a.Orthogonalize == OrthSymmetric && hi-lo < len(ep.chans) {
-			return nil, ferr(path+".orthogonalize", "symmetric orthogonalisation needs more samples (%d) than channels (%d)", hi-lo, len(ep.chans))
+			return nil, ferr(path+".leakageCorrection", "symmetric orthogonalisation needs more samples (%d) than channels (%d)", hi-lo, len(ep.chans))
 		}
 		step := chunkLen / ep.bin * ep.bin
 		if a.Segment > 0 {
@@ -414,7 +414,7 @@ func (ep *envPlan) symmetric(z [][]complex128) error {
 	}
 	w, err := connect.SymmetricWeights(gram, n)
 	if err != nil {
-		return ferr(ep.path+".orthogonalize", "%v; drop a channel (for example one of an average-referenced set) or use pairwise orthogonalisation", err)
+		return ferr(ep.path+".leakageCorrection", "%v; drop a channel (for example one of an average-referenced set) or use pairwise orthogonalisation", err)
 	}
 	m := len(z[0])
 	out := make([][]complex128, n)
@@ -558,11 +558,11 @@ func (ep *envPlan) finish(ctx context.Context, p *Plan, res []UnitResult, out *r
 			note = joinNote(note, "orthogonalised: zero-lag coupling, genuine or leaked, is removed")
 		}
 		row.Extra = []report.Field{
-			{Name: "band_fmin", Value: report.Num(p.freqs[ep.fa[0]])},
-			{Name: "band_fmax", Value: report.Num(p.freqs[ep.fa[len(ep.fa)-1]])},
-			{Name: "target_band_fmin", Value: ep.fbNum(p, 0)},
-			{Name: "target_band_fmax", Value: ep.fbNum(p, len(ep.fb)-1)},
-			{Name: "orthogonalize", Value: orthName(a.Orthogonalize)},
+			{Name: "band_low_hz", Value: report.Num(p.freqs[ep.fa[0]])},
+			{Name: "band_high_hz", Value: report.Num(p.freqs[ep.fa[len(ep.fa)-1]])},
+			{Name: "target_band_low_hz", Value: ep.fbNum(p, 0)},
+			{Name: "target_band_high_hz", Value: ep.fbNum(p, len(ep.fb)-1)},
+			{Name: "leakage_correction", Value: orthName(a.Orthogonalize)},
 			{Name: "over", Value: ep.overName()},
 			{Name: "envelope_rate", Value: report.Num(ep.rate / float64(ep.bin))},
 			{Name: "edge_discard_s", Value: report.Num(ep.discard)},
@@ -827,8 +827,8 @@ func (ep *envPlan) comoRows(vals [][]float64, best float64, bi, bj, n int, out *
 		return report.Num(ep.freqs[idx[i]])
 	}
 	row.Extra = []report.Field{
-		{Name: "band_fmin", Value: peak(ep.fa, bi)}, {Name: "band_fmax", Value: peak(ep.fa, bi)},
-		{Name: "target_band_fmin", Value: peak(ep.fb, bj)}, {Name: "target_band_fmax", Value: peak(ep.fb, bj)},
+		{Name: "band_low_hz", Value: peak(ep.fa, bi)}, {Name: "band_high_hz", Value: peak(ep.fa, bi)},
+		{Name: "target_band_low_hz", Value: peak(ep.fb, bj)}, {Name: "target_band_high_hz", Value: peak(ep.fb, bj)},
 		{Name: "over", Value: ep.overName()},
 		{Name: "envelope_rate", Value: report.Num(ep.rate / float64(ep.bin))},
 		{Name: "edge_discard_s", Value: report.Num(ep.discard)},

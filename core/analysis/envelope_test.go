@@ -20,8 +20,8 @@ const envRecipe = `{
   "spectral": {"low": 4, "high": 48, "steps": 23, "cycles": [4, 8]},
   "analyses": [
     {"id": "plain", "type": "envelope", "channels": ["S", "L", "G", "N", "F"], "freq": [9, 11]},
-    {"id": "orth", "type": "envelope", "channels": ["S", "L", "G", "N", "F"], "freq": [9, 11], "orthogonalize": true, "surrogates": 99, "randomSeed": 2},
-    {"id": "sym", "type": "envelope", "channels": ["S", "G", "N"], "freq": [9, 11], "orthogonalize": "symmetric"},
+    {"id": "orth", "type": "envelope", "channels": ["S", "L", "G", "N", "F"], "freq": [9, 11], "leakageCorrection": "pairwise", "surrogates": 99, "randomSeed": 2},
+    {"id": "sym", "type": "envelope", "channels": ["S", "G", "N"], "freq": [9, 11], "leakageCorrection": "symmetric"},
     {"id": "cross", "type": "envelope", "channels": ["S", "H"], "freq": [9, 11], "targetFreq": [38, 42], "envelopeRate": 20},
     {"id": "como", "type": "comodulogram", "channels": ["S", "H"], "freq": [6, 14], "targetFreq": [30, 46]},
     {"id": "segs", "type": "envelope", "channels": ["S", "G"], "freq": [9, 11], "segment": 10}
@@ -77,8 +77,8 @@ func TestEnvelopeFactsOfTheTrade(t *testing.T) {
 	}
 	// The comodulogram peaks at the planted pair of frequencies.
 	c := get("como", "S", "H")
-	fa, _ := parseF(field(c, "band_fmin"))
-	fb, _ := parseF(field(c, "target_band_fmin"))
+	fa, _ := parseF(field(c, "band_low_hz"))
+	fb, _ := parseF(field(c, "target_band_low_hz"))
 	if math.Abs(fa-10) > 1.5 || math.Abs(fb-40) > 4 || c.R < 0.8 {
 		t.Errorf("comodulogram peak r = %.3f at %g × %g Hz, want > 0.8 near 10 × 40 Hz", c.R, fa, fb)
 	}
@@ -112,8 +112,8 @@ func TestEnvelopeErrors(t *testing.T) {
 		ds           *Dataset
 		want         string
 	}{
-		{"rank deficient", `{"spectral":{"low":4,"high":48,"steps":23},"analyses":[{"type":"envelope","channels":"*","freq":[9,11],"orthogonalize":"symmetric"}]}`,
-			&Dataset{Name: "dup", Recording: dup}, "analyses[0].orthogonalize: the channels' band signals are linearly dependent"},
+		{"rank deficient", `{"spectral":{"low":4,"high":48,"steps":23},"analyses":[{"type":"envelope","channels":"*","freq":[9,11],"leakageCorrection":"symmetric"}]}`,
+			&Dataset{Name: "dup", Recording: dup}, "analyses[0].leakageCorrection: the channels' band signals are linearly dependent"},
 		{"no epochs", `{"spectral":{"low":4,"high":48,"steps":23},"analyses":[{"type":"envelope","channels":"*","freq":[9,11],"over":"epochs"}]}`,
 			&Dataset{Name: "env", Recording: rec}, "analyses[0].over: env has no epochs"},
 		{"one channel", `{"spectral":{"low":4,"high":48,"steps":23},"analyses":[{"type":"envelope","channels":["S"],"freq":[9,11]}]}`,

@@ -489,16 +489,16 @@ func (tp *tfPlan) row(target string) report.Row {
 func (tp *tfPlan) fields(t, f [2]float64, cluster, sign, mass, size, tcrit, pmethod, q, note string) []report.Field {
 	a := tp.a
 	return []report.Field{
-		{Name: "seed_tmin", Value: report.Num(tp.seedT[0])}, {Name: "seed_tmax", Value: report.Num(tp.seedT[1])},
-		{Name: "seed_fmin", Value: report.Num(tp.seedF[0])}, {Name: "seed_fmax", Value: report.Num(tp.seedF[1])},
-		{Name: "target_tmin", Value: report.Num(t[0])}, {Name: "target_tmax", Value: report.Num(t[1])},
-		{Name: "target_fmin", Value: report.Num(f[0])}, {Name: "target_fmax", Value: report.Num(f[1])},
+		{Name: "seed_from_s", Value: report.Num(tp.seedT[0])}, {Name: "seed_to_s", Value: report.Num(tp.seedT[1])},
+		{Name: "seed_low_hz", Value: report.Num(tp.seedF[0])}, {Name: "seed_high_hz", Value: report.Num(tp.seedF[1])},
+		{Name: "target_from_s", Value: report.Num(t[0])}, {Name: "target_to_s", Value: report.Num(t[1])},
+		{Name: "target_low_hz", Value: report.Num(f[0])}, {Name: "target_high_hz", Value: report.Num(f[1])},
 		{Name: "df", Value: strconv.Itoa(tp.ntrials - 2)},
 		{Name: "cluster", Value: cluster},
 		{Name: "sign", Value: sign},
 		{Name: "mass", Value: mass},
 		{Name: "size", Value: size},
-		{Name: "threshold_t", Value: tcrit},
+		{Name: "cluster_forming_t", Value: tcrit},
 		{Name: "p_method", Value: pmethod},
 		{Name: "permutations", Value: strconv.Itoa(a.Permutations)},
 		{Name: "q", Value: q},

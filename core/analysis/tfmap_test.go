@@ -110,11 +110,11 @@ func TestTFMapFindsPlantedBlock(t *testing.T) {
 	}
 	// The block is 6 Hz × 0.2–0.5 s; the 6 Hz wavelet (σt ≈ 0.09 s) and the
 	// short burst's bandwidth smear it by about 0.15 s and a few Hz.
-	if tmin, tmax := num("target_tmin"), num("target_tmax"); tmin > 0.2 || tmax < 0.48 || tmin < 0 || tmax > 0.7 {
-		t.Errorf("cluster spans %g–%g s, want it to cover 0.2–0.48 s and stay within 0–0.7 s", tmin, tmax)
+	if from, to := num("target_from_s"), num("target_to_s"); from > 0.2 || to < 0.48 || from < 0 || to > 0.7 {
+		t.Errorf("cluster spans %g–%g s, want it to cover 0.2–0.48 s and stay within 0–0.7 s", from, to)
 	}
-	if fmin, fmax := num("target_fmin"), num("target_fmax"); fmin > 6 || fmax < 6 {
-		t.Errorf("cluster spans %g–%g Hz, want it to cover 6 Hz", fmin, fmax)
+	if low, high := num("target_low_hz"), num("target_high_hz"); low > 6 || high < 6 {
+		t.Errorf("cluster spans %g–%g Hz, want it to cover 6 Hz", low, high)
 	}
 	if c.R < 0.4 || num("mass") <= 0 || num("size") < 20 {
 		t.Errorf("cluster mean r %.3f, mass %s, size %s", c.R, field(c, "mass"), field(c, "size"))
@@ -365,8 +365,8 @@ func TestTFMapIdenticalWindow(t *testing.T) {
 				}
 			}
 			peak := rowFor(t, res, "id", "A", "A")
-			if peak.R != r || field(peak, "target_tmin") != "-0.3" || field(peak, "target_fmin") != "20" || peak.P != 0 {
-				t.Errorf("peak row r %v p %v at %s s, %s Hz; want the seed pixel", peak.R, peak.P, field(peak, "target_tmin"), field(peak, "target_fmin"))
+			if peak.R != r || field(peak, "target_from_s") != "-0.3" || field(peak, "target_low_hz") != "20" || peak.P != 0 {
+				t.Errorf("peak row r %v p %v at %s s, %s Hz; want the seed pixel", peak.R, peak.P, field(peak, "target_from_s"), field(peak, "target_low_hz"))
 			}
 			if b := rowFor(t, res, "id", "A", "B"); b.R >= 0.999 {
 				t.Errorf("another channel peaks at r = %v", b.R)

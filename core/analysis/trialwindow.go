@@ -158,10 +158,10 @@ func (tw *twPlan) finish(ctx context.Context, p *Plan, res []UnitResult, out *re
 
 func windowFields(tw *twPlan) []report.Field {
 	return []report.Field{
-		{Name: "seed_tmin", Value: report.Num(tw.seedT[0])}, {Name: "seed_tmax", Value: report.Num(tw.seedT[1])},
-		{Name: "seed_fmin", Value: report.Num(tw.seedF[0])}, {Name: "seed_fmax", Value: report.Num(tw.seedF[1])},
-		{Name: "target_tmin", Value: report.Num(tw.targT[0])}, {Name: "target_tmax", Value: report.Num(tw.targT[1])},
-		{Name: "target_fmin", Value: report.Num(tw.targF[0])}, {Name: "target_fmax", Value: report.Num(tw.targF[1])},
+		{Name: "seed_from_s", Value: report.Num(tw.seedT[0])}, {Name: "seed_to_s", Value: report.Num(tw.seedT[1])},
+		{Name: "seed_low_hz", Value: report.Num(tw.seedF[0])}, {Name: "seed_high_hz", Value: report.Num(tw.seedF[1])},
+		{Name: "target_from_s", Value: report.Num(tw.targT[0])}, {Name: "target_to_s", Value: report.Num(tw.targT[1])},
+		{Name: "target_low_hz", Value: report.Num(tw.targF[0])}, {Name: "target_high_hz", Value: report.Num(tw.targF[1])},
 	}
 }
 

@@ -431,7 +431,7 @@ func TestFiguresOffAndScale(t *testing.T) {
 func TestFiguresContinuous(t *testing.T) {
 	rc := `{"spectral": {"low": 4, "high": 48, "steps": 23, "cycles": [4, 8]},
 	  "analyses": [
-	    {"id": "orth", "type": "envelope", "channels": ["S", "L", "G"], "freq": [9, 11], "orthogonalize": true},
+	    {"id": "orth", "type": "envelope", "channels": ["S", "L", "G"], "freq": [9, 11], "leakageCorrection": "pairwise"},
 	    {"id": "como", "type": "comodulogram", "channels": ["S", "H"], "freq": [6, 14], "targetFreq": [30, 46]}]}`
 	_, res := runFig(t, rc, &dataset.Dataset{Name: "env", Recording: synth.Envelopes()}, 2)
 	if got, want := figureNames(res), []string{"orth_matrix", "orth_envelopes_S_L", "como_comodulogram"}; !slices.Equal(got, want) {

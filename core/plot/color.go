@@ -126,10 +126,14 @@ func ParseHex(s string) (c RGB, ok bool) {
 	return RGB{v[0], v[1], v[2]}, true
 }
 
-// Machado et al. (2009), "A physiologically-based model for simulation of
-// color vision deficiency", IEEE TVCG 15(6):1291, table of simulation
-// matrices at severity 1.0, applied to linear RGB. Values from memory of
-// the published table; each row sums to 1 so that white maps to white.
+// Simulation matrices of Machado, Oliveira & Fernandes (2009), "A
+// physiologically-based model for simulation of color vision deficiency",
+// IEEE TVCG 15(6):1291–1298, the severity-1.0 rows of their table of
+// protanomaly and deuteranomaly matrices (full protanopia and
+// deuteranopia), applied to linear RGB. Each row sums to 1, so white maps
+// to white. Checked against a transcription of the whole table (severities
+// 0.1–1.0) in GarrettGunnell/AcerolaFX, Shaders/Includes/
+// AcerolaFX_ColorBlindness.fxh, which gives the same six digits.
 var (
 	machadoDeutan = [3][3]float64{
 		{0.367322, 0.860646, -0.227968},
@@ -237,27 +241,40 @@ func lutIndex(t float64) int {
 	return int(math.Round(clamp01(t) * (lutSize - 1)))
 }
 
-// Ember is the sequential scale: lightness rises monotonically from
-// L = 0.20 (deep violet-brown) through brick and amber to L = 0.96
-// (pale straw), with hue turning from violet towards yellow.
-var Ember = newScale("ember", false,
-	LCh{0.20, 0.060, 320},
-	LCh{0.40, 0.110, 10},
-	LCh{0.60, 0.135, 45},
-	LCh{0.80, 0.120, 75},
-	LCh{0.96, 0.055, 100},
+// Dune is the sequential scale: lightness rises monotonically from
+// L = 0.24 (deep slate-blue) through a dusky mauve and muted copper to
+// L = 0.95 (pale sand). Its hue runs from blue to yellow, the axis that
+// deuteranopes and protanopes keep, through a low-chroma middle.
+var Dune = newScale("dune", false,
+	LCh{0.24, 0.075, 262},
+	LCh{0.42, 0.050, 318},
+	LCh{0.61, 0.100, 48},
+	LCh{0.79, 0.090, 68},
+	LCh{0.95, 0.040, 88},
 )
 
-// Tidal is the diverging scale: slate blue (L = 0.36) at t = 0, a light
-// warm-grey neutral (L = 0.96) at t = 0.5 and burnt orange (L = 0.42) at
-// t = 1; lightness is monotonic on each half. Blue against orange is kept
-// apart by the blue–yellow channel that dichromats retain.
-var Tidal = newScale("tidal", true,
-	LCh{0.36, 0.110, 262},
-	LCh{0.66, 0.100, 250},
-	LCh{0.96, 0.008, 85},
-	LCh{0.74, 0.120, 62},
-	LCh{0.42, 0.120, 45},
+// Heath is the diverging scale: deep heather violet (L = 0.34) at t = 0, a
+// light cool grey with a trace of lilac (L = 0.95) at t = 0.5 and dark
+// olive-gold (L = 0.42) at t = 1; lightness is monotonic on each half.
+// Violet against olive-gold is kept apart by the blue–yellow channel that
+// dichromats retain.
+var Heath = newScale("heath", true,
+	LCh{0.34, 0.120, 295},
+	LCh{0.64, 0.100, 298},
+	LCh{0.95, 0.012, 300},
+	LCh{0.72, 0.110, 100},
+	LCh{0.42, 0.085, 105},
+)
+
+// The pair of line colours for figures that draw two series (the first
+// solid, the second dashed) and the two marks of group figures: a heather
+// violet at L = 0.40 and a dark gold at L = 0.64, apart in hue for every
+// viewer, in lightness for greyscale print, and by the dash.
+var (
+	LineA = LCh{0.40, 0.120, 295}.Lab().RGB().Hex()
+	LineB = LCh{0.64, 0.120, 95}.Lab().RGB().Hex()
+	// lineAEdge outlines LineA's dots in scatters: the same violet, darker.
+	lineAEdge = LCh{0.28, 0.090, 295}.Lab().RGB().Hex()
 )
 
 // undefinedFill is the grey used for undefined (NaN) cells.

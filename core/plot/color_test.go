@@ -155,72 +155,117 @@ func TestHex(t *testing.T) {
 	}
 }
 
+// luminance is the relative luminance of an sRGB colour, the grey a
+// greyscale print gives it: Y = 0.2126·R + 0.7152·G + 0.0722·B on linear
+// channels (IEC 61966-2-1 / ITU-R BT.709 primaries, D65).
+func luminance(c RGB) float64 {
+	return 0.2126*SRGBToLinear(c.R) + 0.7152*SRGBToLinear(c.G) + 0.0722*SRGBToLinear(c.B)
+}
+
+// dichromats are the two simulations of Machado et al. (2009), severity 1.
+var dichromats = []struct {
+	name string
+	f    func(RGB) RGB
+}{{"deuteranope", RGB.Deuteranope}, {"protanope", RGB.Protanope}}
+
+// The properties of the scales, computed from the definitions: OKLab
+// lightness (Ottosson 2020) for perceptual order, the Machado et al. (2009)
+// simulations for dichromats, and relative luminance for greyscale print.
+// Thresholds, in OKLab ΔE (Euclidean): a just-noticeable difference is
+// about 0.02 (common practice for OKLab); neighbouring shades 0.1 apart on
+// the sequential scale must differ by ≥ 0.05 (2.5 JND) for every viewer,
+// and the two sides of the diverging scale by ≥ 0.15 at the ends and the
+// quarter points and ≥ 0.08 at t = 0.4 vs 0.6.
 func TestScales(t *testing.T) {
 	const n = 201
-	t.Run("ember lightness rises monotonically, dark to light", func(t *testing.T) {
+	at := func(i int) float64 { return float64(i) / (n - 1) }
+	t.Run("dune lightness rises monotonically, dark to light", func(t *testing.T) {
 		prev := -1.0
 		for i := 0; i < n; i++ {
-			l := Ember.Lab(float64(i) / (n - 1)).L
+			l := Dune.Lab(at(i)).L
 			if l <= prev {
 				t.Fatalf("L(%d/%d) = %v ≤ %v", i, n-1, l, prev)
 			}
 			prev = l
 		}
-		if lo, hi := Ember.Lab(0).L, Ember.Lab(1).L; lo > 0.3 || hi < 0.9 {
+		if lo, hi := Dune.Lab(0).L, Dune.Lab(1).L; lo > 0.3 || hi < 0.9 {
 			t.Errorf("lightness span %v…%v too narrow", lo, hi)
 		}
 	})
-	t.Run("tidal lightness monotonic on each half, light neutral centre", func(t *testing.T) {
+	t.Run("dune is ordered for dichromats and in greyscale", func(t *testing.T) {
+		views := append([]struct {
+			name string
+			f    func(RGB) RGB
+		}{{"full colour", func(c RGB) RGB { return c }}}, dichromats...)
+		for _, v := range views {
+			prevL, prevY := -1.0, -1.0
+			for i := 0; i < n; i++ {
+				c := v.f(Dune.RGB(at(i)))
+				l, y := c.OKLab().L, luminance(c)
+				if l <= prevL || y <= prevY {
+					t.Fatalf("%s: at t = %v, L %v (before %v), Y %v (before %v): not rising", v.name, at(i), l, prevL, y, prevY)
+				}
+				prevL, prevY = l, y
+			}
+			for i := 0; i+20 < n; i++ {
+				a, b := v.f(Dune.RGB(at(i))).OKLab(), v.f(Dune.RGB(at(i+20))).OKLab()
+				if d := DeltaE(a, b); d < 0.05 {
+					t.Errorf("%s: t = %v and %v differ by ΔE %.3f < 0.05", v.name, at(i), at(i+20), d)
+				}
+			}
+		}
+		// greyscale print: the ends' luminance contrast (Y+0.05)/(Y+0.05)
+		// of WCAG 2 is at least 7:1
+		if lo, hi := luminance(Dune.RGB(0)), luminance(Dune.RGB(1)); (hi+0.05)/(lo+0.05) < 7 {
+			t.Errorf("greyscale ends Y %.3f and %.3f: contrast %.1f:1 < 7:1", lo, hi, (hi+0.05)/(lo+0.05))
+		}
+	})
+	t.Run("heath lightness monotonic on each half, light neutral centre", func(t *testing.T) {
 		prev := -1.0
 		for i := 0; i <= (n-1)/2; i++ {
-			l := Tidal.Lab(float64(i) / (n - 1)).L
+			l := Heath.Lab(at(i)).L
 			if l <= prev {
 				t.Fatalf("left half: L(%d) = %v ≤ %v", i, l, prev)
 			}
 			prev = l
 		}
 		for i := (n-1)/2 + 1; i < n; i++ {
-			l := Tidal.Lab(float64(i) / (n - 1)).L
+			l := Heath.Lab(at(i)).L
 			if l >= prev {
 				t.Fatalf("right half: L(%d) = %v ≥ %v", i, l, prev)
 			}
 			prev = l
 		}
-		c := Tidal.Lab(0.5)
+		c := Heath.Lab(0.5)
 		if c.L < 0.9 || math.Hypot(c.A, c.B) > 0.02 {
 			t.Errorf("centre %+v is not a light neutral", c)
 		}
 	})
-	for _, s := range []*Scale{Ember, Tidal} {
+	for _, s := range []*Scale{Dune, Heath} {
 		t.Run(s.Name()+" stays in the sRGB gamut", func(t *testing.T) {
 			for i := 0; i < n; i++ {
-				c := s.Lab(float64(i) / (n - 1)).RGB()
+				c := s.Lab(at(i)).RGB()
 				if !c.InGamut(0.002) {
-					t.Fatalf("t = %v gives %+v", float64(i)/(n-1), c)
+					t.Fatalf("t = %v gives %+v", at(i), c)
 				}
 			}
 		})
 	}
-	// The two ends (and the two mid shades, which have similar lightness)
-	// must stay apart for dichromats: OKLab ΔE after the Machado et al.
-	// (2009) simulation. 0.1 is well above a just-noticeable ΔE (≈ 0.02,
-	// common practice for OKLab).
-	for _, sim := range []struct {
-		name string
-		f    func(RGB) RGB
-	}{{"deuteranope", RGB.Deuteranope}, {"protanope", RGB.Protanope}} {
-		t.Run("tidal ends distinct for a "+sim.name, func(t *testing.T) {
-			for _, p := range [][2]float64{{0, 1}, {0.25, 0.75}, {0.1, 0.9}} {
-				a := sim.f(Tidal.RGB(p[0])).OKLab()
-				b := sim.f(Tidal.RGB(p[1])).OKLab()
-				if d := DeltaE(a, b); d < 0.1 {
-					t.Errorf("t = %v vs %v: ΔE = %.3f in a %s view", p[0], p[1], d, sim.name)
+	// The two sides of the diverging scale must stay apart for dichromats:
+	// OKLab ΔE after the Machado et al. (2009) simulation.
+	for _, sim := range dichromats {
+		t.Run("heath sides distinct for a "+sim.name, func(t *testing.T) {
+			for _, p := range []struct{ lo, hi, min float64 }{{0, 1, 0.15}, {0.1, 0.9, 0.15}, {0.25, 0.75, 0.15}, {0.4, 0.6, 0.08}} {
+				a := sim.f(Heath.RGB(p.lo)).OKLab()
+				b := sim.f(Heath.RGB(p.hi)).OKLab()
+				if d := DeltaE(a, b); d < p.min {
+					t.Errorf("t = %v vs %v: ΔE = %.3f < %v in a %s view", p.lo, p.hi, d, p.min, sim.name)
 				}
 			}
 		})
 	}
 	t.Run("quantised table matches the scale", func(t *testing.T) {
-		for _, s := range []*Scale{Ember, Tidal} {
+		for _, s := range []*Scale{Dune, Heath} {
 			for _, v := range []float64{0, 0.3, 0.5, 1} {
 				want := s.RGB(float64(lutIndex(v)) / (lutSize - 1)).Hex()
 				if got := s.Hex(v); got != want {
@@ -228,8 +273,37 @@ func TestScales(t *testing.T) {
 				}
 			}
 		}
-		if Ember.Hex(-3) != Ember.Hex(0) || Ember.Hex(9) != Ember.Hex(1) {
+		if Dune.Hex(-3) != Dune.Hex(0) || Dune.Hex(9) != Dune.Hex(1) {
 			t.Error("out-of-range t is not clamped")
 		}
 	})
+}
+
+// The two line colours stay apart for every viewer (ΔE ≥ 0.2 in OKLab,
+// ten JND, after each simulation) and in greyscale (OKLab L of the
+// luminance grey differs by ≥ 0.15), and both are in gamut.
+func TestLinePair(t *testing.T) {
+	a, okA := ParseHex(LineA)
+	b, okB := ParseHex(LineB)
+	if !okA || !okB {
+		t.Fatalf("LineA %q, LineB %q are not #rrggbb", LineA, LineB)
+	}
+	for _, c := range []LCh{{0.40, 0.120, 295}, {0.64, 0.120, 95}} {
+		if !c.Lab().RGB().InGamut(0.002) {
+			t.Errorf("%+v is outside the sRGB gamut", c)
+		}
+	}
+	views := append([]struct {
+		name string
+		f    func(RGB) RGB
+	}{{"full colour", func(c RGB) RGB { return c }}}, dichromats...)
+	for _, v := range views {
+		if d := DeltaE(v.f(a).OKLab(), v.f(b).OKLab()); d < 0.2 {
+			t.Errorf("%s: ΔE(LineA, LineB) = %.3f < 0.2", v.name, d)
+		}
+	}
+	grey := func(c RGB) float64 { y := luminance(c); return LinearToOKLab(y, y, y).L }
+	if d := math.Abs(grey(a) - grey(b)); d < 0.15 {
+		t.Errorf("greyscale: lightness %.3f vs %.3f differ by %.3f < 0.15", grey(a), grey(b), d)
+	}
 }

@@ -17,11 +17,12 @@
 // SVG refers to nothing outside itself (no href, no fonts, no scripts).
 // Text is <text> in the generic sans-serif family.
 //
-// Colour scales are interpolated in OKLab (Ottosson 2020). Ember is a
-// sequential scale (lightness rises monotonically from a deep violet-brown
-// to a pale straw); Tidal is a diverging scale through a light neutral at
-// its centre, from a slate blue to a burnt orange, two hues that stay apart
-// for deuteranopes and protanopes.
+// Colour scales are interpolated in OKLab (Ottosson 2020). Dune is a
+// sequential scale (lightness rises monotonically from a deep slate-blue
+// through muted copper to a pale sand); Heath is a diverging scale through
+// a light cool grey at its centre, from a heather violet to a dark
+// olive-gold, two hues that stay apart for deuteranopes and protanopes.
+// LineA (violet, solid) and LineB (dark gold, dashed) draw two series.
 //
 // Shapes that do not match (a matrix row of the wrong length, labels that
 // do not match the matrix) are programming errors and panic with the

@@ -180,12 +180,12 @@ func TestMatrixCells(t *testing.T) {
 	}
 	// symmetric limits ±max|v| = ±0.5: +0.5 takes the top of the scale,
 	// −0.25 the quarter point, and undefined cells are grey
-	for _, c := range []string{Tidal.Hex(1), Tidal.Hex(0.25), undefinedFill} {
+	for _, c := range []string{Heath.Hex(1), Heath.Hex(0.25), undefinedFill} {
 		if !strings.Contains(svg, `fill="`+c+`"`) {
 			t.Errorf("no cell filled %s", c)
 		}
 	}
-	if strings.Contains(svg, `fill="`+Tidal.Hex(0)+`"`) && Tidal.Hex(0) != Tidal.Hex(0.25) {
+	if strings.Contains(svg, `fill="`+Heath.Hex(0)+`"`) && Heath.Hex(0) != Heath.Hex(0.25) {
 		t.Errorf("−0.5 end used though the minimum is −0.25")
 	}
 	if g.XMax != 3 || g.YMin != 3 || g.YMax != 0 {
@@ -199,7 +199,7 @@ func TestMatrixCells(t *testing.T) {
 	}
 	// a given limit overrides max|v|
 	svg, _ = Matrix(v, []string{"A", "B", "C"}, MatrixOptions{Limit: 1, ValueName: "z"})
-	if !strings.Contains(svg, `fill="`+Tidal.Hex(0.75)+`"`) || !strings.Contains(svg, "A–B: z = 0.500") {
+	if !strings.Contains(svg, `fill="`+Heath.Hex(0.75)+`"`) || !strings.Contains(svg, "A–B: z = 0.500") {
 		t.Error("Limit 1 should colour 0.5 at t = 0.75 and name the value z")
 	}
 }
@@ -259,7 +259,7 @@ func TestTFPowerColour(t *testing.T) {
 	svg, g := TFPower(p, []float64{10, 20}, []float64{0, 0.1, 0.2, 0.3}, TFPowerOptions{LogColour: true})
 	// log colour over the positive values 1…100: 0 takes the lowest colour,
 	// 10 the middle, NaN the undefined grey
-	for _, c := range []string{Ember.Hex(0), Ember.Hex(0.5), Ember.Hex(1), undefinedFill} {
+	for _, c := range []string{Dune.Hex(0), Dune.Hex(0.5), Dune.Hex(1), undefinedFill} {
 		if !strings.Contains(svg, `fill="`+c+`"`) {
 			t.Errorf("no cell filled %s", c)
 		}

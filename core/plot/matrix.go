@@ -15,7 +15,7 @@ type MatrixOptions struct {
 
 // Matrix draws an N × N connectivity matrix: values[i][j] between
 // labels[i] (row, y axis) and labels[j] (column, x axis), on the diverging
-// Tidal scale with limits ±max|v| (or ±Limit), so 0 is the light neutral.
+// Heath scale with limits ±max|v| (or ±Limit), so 0 is the light neutral.
 // Every cell carries a <title> "A–B: r = 0.123"; NaN and ±Inf cells are
 // grey with a diagonal hatch and the title "A–B: undefined". The geometry
 // uses index coordinates: column j spans x ∈ [j, j+1], row i spans
@@ -29,7 +29,7 @@ func Matrix(values [][]float64, labels []string, opt MatrixOptions) (string, Geo
 	}
 	w, h, font := opt.Frame.size()
 	lim := symLimit(values, opt.Limit)
-	bar := newColourBar(Tidal, -lim, lim, false, opt.ValueName)
+	bar := newColourBar(Heath, -lim, lim, false, opt.ValueName)
 	tf := font + 1
 	top := 8.0
 	titles := titleLinesFor(opt.Title, "", w, tf)
@@ -95,7 +95,7 @@ func Matrix(values [][]float64, labels []string, opt MatrixOptions) (string, Geo
 			fill := undefinedFill
 			tip := labels[i] + "–" + labels[j] + ": "
 			if finite(v) {
-				fill = Tidal.Hex((v + lim) / (2 * lim))
+				fill = Heath.Hex((v + lim) / (2 * lim))
 				tip += opt.ValueName + " = " + fmtTick(v, 0.001)
 			} else {
 				tip += "undefined"

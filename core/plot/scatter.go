@@ -86,7 +86,7 @@ func Scatter(x, y []float64, opt ScatterOptions) (string, Geometry) {
 	if len(xs) == 0 {
 		d.text(g.Left+g.Width/2, g.Top+g.Height/2, "middle", 0, 0, "no finite pairs", ` fill="#666666"`)
 	}
-	d.raw(`<g fill="#2a5d8f" fill-opacity="0.45" stroke="#173a5e" stroke-opacity="0.8" stroke-width="0.5">` + "\n")
+	d.raw(`<g fill="`, LineA, `" fill-opacity="0.45" stroke="`, lineAEdge, `" stroke-opacity="0.8" stroke-width="0.5">`+"\n")
 	for k := range xs {
 		px, py := g.ToPixel(xs[k], ys[k])
 		d.raw(`<circle cx="`, num(px), `" cy="`, num(py), `" r="2.3"`)

@@ -40,7 +40,7 @@ func (f *Frame) defaults(xl, xu, yl, yu string) {
 // power at freqs[i] (Hz) and times[j] (s). Rows are bands between the
 // midpoints of neighbouring frequencies (geometric midpoints on a log
 // axis), columns likewise between neighbouring times; maps wider than 400
-// columns are averaged into 400 bins. Colour uses the sequential Ember
+// columns are averaged into 400 bins. Colour uses the sequential Dune
 // scale. Windows are outlined and labelled. It panics when the shapes do
 // not match or a grid is not strictly increasing.
 func TFPower(power [][]float64, freqs, times []float64, opt TFPowerOptions) (string, Geometry) {
@@ -53,7 +53,7 @@ func TFPower(power [][]float64, freqs, times []float64, opt TFPowerOptions) (str
 		fr: opt.Frame, xc: times, yc: freqs,
 		ylog:     opt.FreqAxis.isLog(freqs),
 		vals:     power,
-		scale:    Ember,
+		scale:    Dune,
 		cmap:     newColourMap(power, opt.Min, opt.Max, opt.LogColour),
 		barTitle: axisTitle(opt.ColourLabel, opt.ColourUnit),
 	}
@@ -117,8 +117,8 @@ type CrossFreqOptions struct {
 // CrossFreq draws a seed-frequency × target-frequency map:
 // values[i][j] belongs to seedFreqs[i] (x axis, Hz) and targetFreqs[j]
 // (y axis, Hz). When any finite value is negative the map uses the
-// diverging Tidal scale with symmetric limits ±max|v| (or ±Limit);
-// otherwise the sequential Ember scale over [min, max]. It panics when the
+// diverging Heath scale with symmetric limits ±max|v| (or ±Limit);
+// otherwise the sequential Dune scale over [min, max]. It panics when the
 // shapes do not match or a grid is not strictly increasing.
 func CrossFreq(values [][]float64, seedFreqs, targetFreqs []float64, opt CrossFreqOptions) (string, Geometry) {
 	checkMatrix(values, len(seedFreqs), len(targetFreqs), "CrossFreq values")
@@ -146,9 +146,9 @@ func CrossFreq(values [][]float64, seedFreqs, targetFreqs []float64, opt CrossFr
 	}
 	if neg {
 		lim := symLimit(t, opt.Limit)
-		h.scale, h.cmap = Tidal, colourMap{lo: -lim, hi: lim}
+		h.scale, h.cmap = Heath, colourMap{lo: -lim, hi: lim}
 	} else {
-		h.scale, h.cmap = Ember, newColourMap(t, 0, 0, false)
+		h.scale, h.cmap = Dune, newColourMap(t, 0, 0, false)
 		if finite(opt.Limit) && opt.Limit > 0 {
 			h.cmap = colourMap{lo: 0, hi: opt.Limit}
 		}
@@ -168,7 +168,7 @@ type TFCorrOptions struct {
 }
 
 // TFCorr draws a time–frequency correlation map (values[i][j] at freqs[i]
-// Hz and times[j] s) on the diverging Tidal scale with symmetric limits,
+// Hz and times[j] s) on the diverging Heath scale with symmetric limits,
 // and outlines clusters: clusters[i][j] is a cluster label (any int), and
 // every label listed in outline gets a path along the cell edges that
 // separate its cells from the rest. clusters may be nil. It panics when
@@ -193,7 +193,7 @@ func TFCorr(values [][]float64, freqs, times []float64, clusters [][]int, outlin
 	h := heatFigure{
 		fr: opt.Frame, xc: times, yc: freqs,
 		ylog: opt.FreqAxis.isLog(freqs),
-		vals: values, scale: Tidal, cmap: colourMap{lo: -lim, hi: lim},
+		vals: values, scale: Heath, cmap: colourMap{lo: -lim, hi: lim},
 		barTitle: opt.ValueName,
 	}
 	return h.draw(func(d *svgDoc, g Geometry, xe, ye []float64) {

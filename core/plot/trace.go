@@ -18,8 +18,8 @@ type EnvelopeOptions struct {
 const maxTracePoints = 1000
 
 // EnvelopeTrace draws two envelopes over time: a[k] and b[k] at times[k]
-// (s). A is a solid dark blue line, B a dashed orange one, so the two stay
-// apart in greyscale. NaN samples break the line. The value axis includes
+// (s). A is a solid violet line (LineA), B a dashed dark-gold one (LineB),
+// so the two stay apart in greyscale. NaN samples break the line. The value axis includes
 // 0 when no value is negative. It panics when the lengths differ.
 func EnvelopeTrace(times, a, b []float64, opt EnvelopeOptions) (string, Geometry) {
 	if len(a) != len(times) || len(b) != len(times) {
@@ -67,7 +67,7 @@ func EnvelopeTrace(times, a, b []float64, opt EnvelopeOptions) (string, Geometry
 	d.titles(l)
 	d.gridLines(g, xa, ya)
 	type style struct{ colour, dash, name string }
-	styles := [2]style{{"#1f4e79", "", opt.NameA}, {"#c0561b", "4.5 2.5", opt.NameB}}
+	styles := [2]style{{LineA, "", opt.NameA}, {LineB, "4.5 2.5", opt.NameB}}
 	for s, v := range [2][]float64{a, b} {
 		p := tracePath(g, times, v)
 		if p == "" {
@@ -245,14 +245,14 @@ func GroupDots(labels []string, values []float64, opt GroupDotsOptions) (string,
 	cy := func(i int) float64 { return g.py(float64(i) + 0.5) }
 	if grp != nil && finite(grp.Mean) {
 		mx := g.px(grp.Mean)
-		d.raw(`<path d="M`, num(mx), " ", num(g.Top), "v", num(g.Height), `" stroke="#c0561b" stroke-width="0.8" stroke-dasharray="3 2" fill="none"/>`+"\n")
+		d.raw(`<path d="M`, num(mx), " ", num(g.Top), "v", num(g.Height), `" stroke="`, LineB, `" stroke-width="0.8" stroke-dasharray="3 2" fill="none"/>`+"\n")
 	}
 	if grp != nil && len(values) > 0 {
 		sy := g.py(float64(len(values)))
 		d.raw(`<path d="M`, num(g.Left), " ", num(sy), "h", num(g.Width), `" stroke="#bdbdbd" stroke-width="0.6" fill="none"/>`+"\n")
 	}
 	r := math.Min(2.8, math.Max(rowH*0.3, 1.2))
-	d.raw(`<g fill="#1f4e79" stroke="#ffffff" stroke-width="0.5">` + "\n")
+	d.raw(`<g fill="`, LineA, `" stroke="#ffffff" stroke-width="0.5">`+"\n")
 	for i, v := range values {
 		if !finite(v) {
 			continue
@@ -284,7 +284,7 @@ func GroupDots(labels []string, values []float64, opt GroupDotsOptions) (string,
 			if finite(grp.Lo) && finite(grp.Hi) {
 				tip += ", interval " + fmtTick(grp.Lo, 0.001) + " to " + fmtTick(grp.Hi, 0.001)
 			}
-			d.raw(`<path d="M`, num(mx), " ", num(y-s), "l", num(s), " ", num(s), "l", num(-s), " ", num(s), "l", num(-s), " ", num(-s), `z" fill="#c0561b" stroke="#222222" stroke-width="0.6"><title>`, esc(tip), "</title></path>\n")
+			d.raw(`<path d="M`, num(mx), " ", num(y-s), "l", num(s), " ", num(s), "l", num(-s), " ", num(s), "l", num(-s), " ", num(-s), `z" fill="`, LineB, `" stroke="#222222" stroke-width="0.6"><title>`, esc(tip), "</title></path>\n")
 		} else {
 			d.text(g.Left+3, y+lf*0.35, "start", lf, 0, "undefined", ` fill="#666666" font-style="italic"`)
 		}

@@ -52,23 +52,21 @@ type Conditions struct {
 }
 
 // Orth is the envelope leakage correction: "" (none), "pairwise" or "symmetric".
-// In JSON it is false, true (pairwise) or "symmetric".
+// In JSON (the key "leakageCorrection") it is "none", "pairwise" or "symmetric".
 type Orth string
 
-// Orthogonalisation modes.
+// Leakage-correction modes: none, pairwise orthogonalisation (Hipp et al.
+// 2012) or symmetric orthogonalisation (Colclough et al. 2015).
 const (
 	OrthNone      Orth = ""
 	OrthPairwise  Orth = "pairwise"
 	OrthSymmetric Orth = "symmetric"
 )
 
-// MarshalJSON writes false, true or "symmetric".
+// MarshalJSON writes "none", "pairwise" or "symmetric".
 func (o Orth) MarshalJSON() ([]byte, error) {
-	switch o {
-	case OrthNone:
-		return []byte("false"), nil
-	case OrthPairwise:
-		return []byte("true"), nil
+	if o == OrthNone {
+		return []byte(`"none"`), nil
 	}
 	return json.Marshal(string(o))
 }
@@ -87,7 +85,7 @@ type Analysis struct {
 	Channels      []string    `json:"channels,omitempty"`
 	Freq          *[2]float64 `json:"freq,omitempty"`
 	TargetFreq    *[2]float64 `json:"targetFreq,omitempty"`
-	Orthogonalize Orth        `json:"orthogonalize,omitempty"`
+	Orthogonalize Orth        `json:"leakageCorrection,omitempty"`
 	Segment       float64     `json:"segment,omitempty"`      // s; sliding segments for a time course of r
 	EnvelopeRate  float64     `json:"envelopeRate,omitempty"` // Hz; low-pass and downsample envelopes
 	Trials        string      `json:"trials,omitempty"`       // epoched input: "average" (default) or "concatenate"
@@ -101,8 +99,8 @@ type Analysis struct {
 	Level        float64     `json:"level,omitempty"`      // confidence level, default 0.95
 	Covariates   []string    `json:"covariates,omitempty"`
 	Conditions   *Conditions `json:"conditions,omitempty"`
-	Threshold    float64     `json:"clusterThreshold,omitempty"` // cluster-forming p, default 0.05
-	TimeStep     float64     `json:"timeStep,omitempty"`         // tf-map: s between map columns, default 0.02
+	Threshold    float64     `json:"clusterFormingP,omitempty"` // cluster-forming p, default 0.05
+	TimeStep     float64     `json:"timeStep,omitempty"`        // tf-map: s between map columns, default 0.02
 }
 
 // Analysis types.
@@ -331,17 +329,20 @@ func parseAnalysis(path string, v any) (Analysis, error) {
 	if err := o.str("type", &a.Type); err != nil {
 		return a, err
 	}
+	if err := CheckRenamed(path, o.has); err != nil {
+		return a, err
+	}
 	keys := []string{"id", "type", "method", "permutations", "randomSeed", "correction", "level", "covariates", "conditions"}
 	switch a.Type {
 	case TypeTrialWindow, TypeTFMap:
 		a.Method = "spearman"
 		keys = append(keys, "seed", "target")
 		if a.Type == TypeTFMap {
-			keys = append(keys, "clusterThreshold", "timeStep")
+			keys = append(keys, "clusterFormingP", "timeStep")
 		}
 	case TypeEnvelope, TypeComodulogram:
 		a.Method = "pearson"
-		keys = append(keys, "channels", "freq", "targetFreq", "orthogonalize", "segment", "envelopeRate", "trials", "surrogates", "over")
+		keys = append(keys, "channels", "freq", "targetFreq", "leakageCorrection", "segment", "envelopeRate", "trials", "surrogates", "over")
 	case "":
 		return a, ferr(path+".type", "is required: one of %s", typeList)
 	default:
@@ -434,11 +435,11 @@ func parseAnalysis(path string, v any) (Analysis, error) {
 		}
 		if a.Type == TypeTFMap {
 			a.Threshold = 0.05
-			if err := o.num("clusterThreshold", &a.Threshold); err != nil {
+			if err := o.num("clusterFormingP", &a.Threshold); err != nil {
 				return a, err
 			}
 			if !(a.Threshold > 0 && a.Threshold < 1) {
-				return a, ferr(path+".clusterThreshold", "must be a p-value between 0 and 1")
+				return a, ferr(path+".clusterFormingP", "must be a p-value between 0 and 1")
 			}
 			a.TimeStep = 0.02
 			if err := o.num("timeStep", &a.TimeStep); err != nil {
@@ -472,24 +473,18 @@ func parseAnalysis(path string, v any) (Analysis, error) {
 		if a.Type == TypeEnvelope && !fset {
 			return a, ferr(path+".freq", "is required: [low, high] in Hz")
 		}
-		if ov, ok := o.get("orthogonalize"); ok {
-			switch t := ov.(type) {
-			case bool:
-				if t {
-					a.Orthogonalize = OrthPairwise
-				}
-			case string:
-				switch t {
-				case "symmetric":
-					a.Orthogonalize = OrthSymmetric
-				case "pairwise":
-					a.Orthogonalize = OrthPairwise
-				default:
-					return a, ferr(path+".orthogonalize", "%q is not a mode; use true (pairwise), false or \"symmetric\"", t)
-				}
-			default:
-				return a, ferr(path+".orthogonalize", "must be true, false or \"symmetric\"")
-			}
+		lc := "none"
+		if err := o.str("leakageCorrection", &lc); err != nil {
+			return a, ferr(path+".leakageCorrection", "must be \"none\", \"pairwise\" or \"symmetric\"")
+		}
+		switch lc {
+		case "none":
+		case "pairwise":
+			a.Orthogonalize = OrthPairwise
+		case "symmetric":
+			a.Orthogonalize = OrthSymmetric
+		default:
+			return a, ferr(path+".leakageCorrection", "%q is not a correction; use \"none\", \"pairwise\" or \"symmetric\"", lc)
 		}
 		if err := o.num("segment", &a.Segment); err != nil {
 			return a, err
@@ -520,16 +515,35 @@ func parseAnalysis(path string, v any) (Analysis, error) {
 			return a, ferr(path+".over", "%q is not a choice; use \"recording\" or \"epochs\"", a.Over)
 		}
 		if a.TargetFreq != nil && a.Orthogonalize != OrthNone && a.Type == TypeEnvelope {
-			return a, ferr(path+".orthogonalize", "applies to envelopes in the same band; across bands (targetFreq) the zero-lag leakage it removes is not defined")
+			return a, ferr(path+".leakageCorrection", "applies to envelopes in the same band; across bands (targetFreq) the zero-lag leakage it removes is not defined")
 		}
 		if a.Type == TypeComodulogram && (len(a.Channels) > 2 || (len(a.Channels) == 1 && a.Channels[0] == "*")) {
 			return a, ferr(path+".channels", "a comodulogram takes one channel or a pair")
 		}
 		if a.Type == TypeComodulogram && a.Orthogonalize != OrthNone {
-			return a, ferr(path+".orthogonalize", "is not available for comodulograms")
+			return a, ferr(path+".leakageCorrection", "is not available for comodulograms")
 		}
 	}
 	return a, o.done(keys...)
 }
 
 const typeList = `"trial-window", "tf-map", "envelope", "comodulogram"`
+
+// renamedKeys are analysis keys an older recipe may still use; each gets an
+// error that names its new key, never a silent default.
+var renamedKeys = []struct{ old, new, use string }{
+	{"orthogonalize", "leakageCorrection", `"none", "pairwise" (was true) or "symmetric"`},
+	{"clusterThreshold", "clusterFormingP", "the cluster-forming p-value, default 0.05"},
+}
+
+// CheckRenamed returns an error naming the new key when the analysis at
+// path (for example "analyses[1]") still uses a renamed key; has reports
+// whether the analysis has a key.
+func CheckRenamed(path string, has func(key string) bool) error {
+	for _, rk := range renamedKeys {
+		if has(rk.old) {
+			return ferr(path+"."+rk.old, "this key is now %q: %s", rk.new, rk.use)
+		}
+	}
+	return nil
+}

@@ -14,7 +14,7 @@ const goodRecipe = `{
      "target": {"channel": "*",  "time": [0.3, 0.8],   "freq": [1.5, 3.5]},
      "permutations": 1000, "randomSeed": 1, "correction": "fdr"},
     {"id": "a2", "type": "envelope", "channels": ["P3", "P4", "O1"], "freq": [8, 12],
-     "orthogonalize": true, "method": "pearson"},
+     "leakageCorrection": "pairwise", "method": "pearson"},
     {"id": "a3", "type": "envelope", "channels": ["C3", "C4"], "freq": [15, 25], "targetFreq": [60, 80]}
   ]
 }`
@@ -96,7 +96,13 @@ func TestParseErrors(t *testing.T) {
 		{"epochs reversed", `{"epochs":{"event":"x","start":1,"end":0},"analyses":[{"type":"trial-window",` + win + `}]}`, "epochs.end: 0 s is not after start 1 s"},
 		{"duplicate id", `{"analyses":[{"id":"x","type":"trial-window",` + win + `},{"id":"x","type":"trial-window",` + win + `}]}`, `analyses[1].id: "x" is used twice`},
 		{"permutations negative", `{"analyses":[{"type":"trial-window","permutations":-5,` + win + `}]}`, "analyses[0].permutations: must be between 0 and 1000000"},
-		{"orth bad", `{"analyses":[{"type":"envelope","channels":"*","freq":[8,12],"orthogonalize":"yes"}]}`, `analyses[0].orthogonalize: "yes" is not a mode`},
+		{"leakage bad", `{"analyses":[{"type":"envelope","channels":"*","freq":[8,12],"leakageCorrection":"yes"}]}`, `analyses[0].leakageCorrection: "yes" is not a correction; use "none", "pairwise" or "symmetric"`},
+		{"leakage bool", `{"analyses":[{"type":"envelope","channels":"*","freq":[8,12],"leakageCorrection":true}]}`, `analyses[0].leakageCorrection: must be "none", "pairwise" or "symmetric"`},
+		// keys of older recipes: an error that names the new key
+		{"old orthogonalize", `{"analyses":[{"type":"envelope","channels":"*","freq":[8,12],"orthogonalize":true}]}`, `analyses[0].orthogonalize: this key is now "leakageCorrection": "none", "pairwise" (was true) or "symmetric"`},
+		{"old orthogonalize symmetric", `{"analyses":[{"type":"trial-window",` + win + `},{"type":"envelope","channels":"*","freq":[8,12],"orthogonalize":"symmetric"}]}`, `analyses[1].orthogonalize: this key is now "leakageCorrection"`},
+		{"old clusterThreshold", `{"analyses":[{"type":"tf-map","correction":"cluster","clusterThreshold":0.01,` + win + `}]}`, `analyses[0].clusterThreshold: this key is now "clusterFormingP"`},
+		{"clusterFormingP range", `{"analyses":[{"type":"tf-map","clusterFormingP":1.5,` + win + `}]}`, `analyses[0].clusterFormingP: must be a p-value between 0 and 1`},
 		{"envelope no freq", `{"analyses":[{"type":"envelope","channels":"*"}]}`, "analyses[0].freq: is required"},
 		{"envelope window key", `{"analyses":[{"type":"envelope","channels":"*","freq":[8,12],"seed":{}}]}`, `analyses[0]: unknown key "seed"`},
 		{"trailing data", `{"analyses":[{"type":"trial-window",` + win + `}]} {}`, "unexpected data after the recipe object"},

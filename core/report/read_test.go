@@ -33,11 +33,11 @@ func goldenCompare(t *testing.T, name string, got []byte) {
 func sampleResults() *Results {
 	return &Results{Rows: []Row{
 		{Analysis: "a1", Type: "trial-window", Seed: "C4", Target: "P3", Method: "spearman", N: 40, R: 0.25472747497219134, P: 0.0001234,
-			Extra: []Field{{Name: "seed_tmin", Value: "-0.5"}, {Name: "note", Value: ""}, {Name: "recording", Value: "sub-01.edf"}}},
+			Extra: []Field{{Name: "seed_from_s", Value: "-0.5"}, {Name: "note", Value: ""}, {Name: "recording", Value: "sub-01.edf"}}},
 		{Analysis: "a1", Type: "trial-window", Seed: "C4", Target: "Fp1, left", Method: "spearman", N: 40, R: math.NaN(), P: math.NaN(),
 			Extra: []Field{{Name: "note", Value: "undefined: a window's power does not vary across trials"}, {Name: "recording", Value: "sub-01.edf"}}},
 		{Analysis: "a2", Type: "envelope", Seed: "Öz", Target: `"T7"`, Method: "pearson", N: 12000, R: -1e-7, P: 1,
-			Extra: []Field{{Name: "orthogonalize", Value: "pairwise"}, {Name: "note", Value: "line one\nline two"}, {Name: "recording", Value: "sub-02.edf"}}},
+			Extra: []Field{{Name: "leakage_correction", Value: "pairwise"}, {Name: "note", Value: "line one\nline two"}, {Name: "recording", Value: "sub-02.edf"}}},
 		{Analysis: "a3", Type: "comodulogram", Seed: "C3", Target: "C4", Method: "pearson", N: 0, R: 1, P: math.NaN()},
 	}}
 }

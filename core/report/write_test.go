@@ -46,11 +46,11 @@ func sample() *Results {
 	return &Results{
 		Rows: []Row{
 			{Analysis: "a1", Type: "trial-window", Seed: "C4", Target: "Pz", Method: "spearman", N: 40, R: 0.4125, P: 0.0082,
-				Extra: []Field{{"seed_fmin", "15"}, {"seed_fmax", "25"}, {"q", "0.0164"}}},
+				Extra: []Field{{"seed_low_hz", "15"}, {"seed_high_hz", "25"}, {"q", "0.0164"}}},
 			{Analysis: "a1", Type: "trial-window", Seed: "C4", Target: "C3,C4", Method: "spearman", N: 40, R: math.NaN(), P: math.NaN(),
-				Extra: []Field{{"note", `undefined: "C3,C4" has zero variance`}, {"seed_fmin", "15"}}},
+				Extra: []Field{{"note", `undefined: "C3,C4" has zero variance`}, {"seed_low_hz", "15"}}},
 			{Analysis: "a2", Type: "envelope", Seed: "P3", Target: "P4", Method: "pearson", N: 1200, R: -1e-7, P: math.Inf(1),
-				Extra: []Field{{"orthogonalize", "pairwise"}, {"q", ""}, {"band_fmin", "8"}}},
+				Extra: []Field{{"leakage_correction", "pairwise"}, {"q", ""}, {"band_low_hz", "8"}}},
 			{Analysis: "3", Type: "envelope", Seed: "1", Target: "2", Method: "pearson", N: 0, R: 1, P: 0},
 			{Analysis: "a4", Type: "envelope", Seed: "O1", Target: "O2", Method: "pearson", N: 7, R: math.Nextafter(0.3, 1), P: 5e-324,
 				Extra: []Field{{"note", "two\nlines"}, {"recording", "sub-01_task-rest_eeg.edf"}}},
@@ -70,7 +70,7 @@ func TestColumns(t *testing.T) {
 	}{
 		{"empty", &Results{}, Fixed},
 		{"first appearance order", sample(), append(slices.Clone(Fixed),
-			"seed_fmin", "seed_fmax", "q", "note", "orthogonalize", "band_fmin", "recording")},
+			"seed_low_hz", "seed_high_hz", "q", "note", "leakage_correction", "band_low_hz", "recording")},
 		{"extra named like a fixed column is not repeated", &Results{Rows: []Row{{Extra: []Field{{"r", "x"}, {"z", "1"}}}}},
 			append(slices.Clone(Fixed), "z")},
 	}
@@ -214,9 +214,9 @@ func TestWriteJSONTypes(t *testing.T) {
 		col  string
 		want any
 	}{
-		{0, "n", 40.0}, {0, "r", 0.4125}, {0, "p", 0.0082}, {0, "seed_fmin", 15.0}, {0, "q", 0.0164},
+		{0, "n", 40.0}, {0, "r", 0.4125}, {0, "p", 0.0082}, {0, "seed_low_hz", 15.0}, {0, "q", 0.0164},
 		{0, "note", nil}, {1, "r", nil}, {1, "p", nil}, {2, "p", nil}, {2, "q", nil},
-		{2, "orthogonalize", "pairwise"}, {0, "method", "spearman"},
+		{2, "leakage_correction", "pairwise"}, {0, "method", "spearman"},
 		{3, "analysis", "3"}, {3, "seed", "1"}, {3, "target", "2"}, {3, "n", 0.0}, {3, "p", 0.0},
 		{4, "r", 0.30000000000000004}, {4, "p", 5e-324}, {4, "note", "two\nlines"},
 		{1, "target", "C3,C4"},

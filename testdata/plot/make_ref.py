@@ -10,7 +10,7 @@ Lab (M2). The Go code uses the pre-multiplied linear-sRGB matrix instead,
 so the two agree only if both routes are right.
 
 The colour-vision-deficiency simulation applies the Machado et al. (2009)
-severity-1.0 matrices (values from memory of the paper's table) to linear
+severity-1.0 matrices (the paper's table, as core/plot/color.go names) to linear
 sRGB and clips to [0, 1].
 """
 import json

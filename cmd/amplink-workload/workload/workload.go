@@ -123,7 +123,7 @@ const EnvelopeRecipe = `{
   "spectral": {"method": "wavelet", "low": 2, "high": 60, "steps": 40, "spacing": "log", "cycles": [3, 10]},
   "analyses": [
     {"id": "alpha-orth", "type": "envelope", "method": "pearson", "channels": "*", "freq": [8, 12],
-     "orthogonalize": true, "envelopeRate": 10, "over": "recording"}
+     "leakageCorrection": "pairwise", "envelopeRate": 10, "over": "recording"}
   ]
 }
 `

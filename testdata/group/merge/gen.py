@@ -12,7 +12,7 @@ sub-03's O1-O2 envelope r is undefined.
 import csv
 
 COLS = ["analysis", "type", "seed", "target", "method", "n", "r", "p",
-        "seed_tmin", "seed_tmax", "df", "p_method", "ci_lo", "ci_hi", "ci_level", "note", "recording"]
+        "seed_from_s", "seed_to_s", "df", "p_method", "ci_lo", "ci_hi", "ci_level", "note", "recording"]
 TESTS = [
     ("a1", "trial-window", "C4", "P3", "spearman"),
     ("a1", "trial-window", "C4", "P4", "spearman"),
