@@ -399,33 +399,12 @@ func (ep *envPlan) compute(ctx context.Context, p *Plan, seg int, span [2]int) (
 	return out, nil
 }
 
-// symmetric replaces the band signals by their symmetric orthogonalisation.
+// symmetric replaces the band signals by their closest orthogonal set
+// (connect.SymmetricCorrect).
 func (ep *envPlan) symmetric(z [][]complex128) error {
-	n := len(z)
-	gram := make([]float64, n*n)
-	for i := range n {
-		for j := i; j < n; j++ {
-			s := 0.0
-			for k := range z[i] {
-				s += real(z[i][k]) * real(z[j][k])
-			}
-			gram[i*n+j], gram[j*n+i] = s, s
-		}
-	}
-	w, err := connect.SymmetricWeights(gram, n)
+	out, err := connect.SymmetricCorrect(z, nil)
 	if err != nil {
 		return ferr(ep.path+".orthogonalize", "%v; drop a channel (for example one of an average-referenced set) or use pairwise orthogonalisation", err)
-	}
-	m := len(z[0])
-	out := make([][]complex128, n)
-	for i := range n {
-		out[i] = make([]complex128, m)
-		for j := range n {
-			wij := complex(w[i*n+j], 0)
-			for k, v := range z[j] {
-				out[i][k] += wij * v
-			}
-		}
 	}
 	copy(z, out)
 	return nil
