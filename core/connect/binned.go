@@ -139,3 +139,197 @@ func Rotate(dst, y []complex128, lag int) []complex128 {
 	copy(dst[n-lag:], y[:lag])
 	return dst
 }
+
+// Leakage is a leakage correction for PairTerms.
+type Leakage uint8
+
+const (
+	// NoLeakageCorrection correlates the plain envelopes.
+	NoLeakageCorrection Leakage = iota
+	// PairwiseOrth correlates |X| with |Y⊥X| and |Y| with |X⊥Y| (Hipp et
+	// al. 2012, Nat Neurosci 15:884).
+	PairwiseOrth
+	// SymmetricOrth correlates the envelopes of the closest orthogonal set
+	// of all the channels (ClosestOrthogonal; Colclough et al. 2015).
+	SymmetricOrth
+)
+
+// PairTerms returns the envelope series that the pair (i, j) correlates
+// when channel j's band signal is replaced by yj (z[j] itself for the
+// observed r; a time-shifted or trial-permuted copy for a surrogate): each
+// term is a pair of binned series (as Envelope and OrthEnvelope make them
+// with bin, segs and kind). The correction is applied after the
+// replacement, so a surrogate is orthogonalised against the unshifted X
+// (pairwise, both directions: |X| with |Y⊥X| and |Y| with |X⊥Y|) or
+// re-orthogonalised as a set (symmetric: one closest orthogonal set per
+// segment of segs, as per trial on epochs; z holds every channel of the
+// set). It is NewPairTermer(…).Terms(yj).
+func PairTerms(z [][]complex128, i, j int, yj []complex128, corr Leakage, bin int, segs []int, kind EnvKind) ([][2][]float64, error) {
+	return NewPairTermer(z, i, j, corr, bin, segs, kind).Terms(yj)
+}
+
+// PairTermer is PairTerms prepared once for many replacements of channel
+// j: what does not depend on yj (|X| and 1/|X|, the Gram matrix of the
+// other channels per segment) is computed once.
+type PairTermer struct {
+	z     [][]complex128
+	i, j  int
+	corr  Leakage
+	bin   int
+	segs  []int
+	kind  EnvKind
+	ex    []float64   // envelope of X
+	invx  []float64   // 1/|x| (0 where x is 0)
+	grams [][]float64 // symmetric: the real Gram matrix per segment
+}
+
+// NewPairTermer prepares PairTerms for the pair (i, j) of z.
+func NewPairTermer(z [][]complex128, i, j int, corr Leakage, bin int, segs []int, kind EnvKind) *PairTermer {
+	if segs == nil {
+		segs = []int{len(z[i])}
+	}
+	p := &PairTermer{z: z, i: i, j: j, corr: corr, bin: bin, segs: segs, kind: kind}
+	x := z[i]
+	switch corr {
+	case PairwiseOrth:
+		p.ex = Envelope(nil, x, bin, segs, kind)
+		p.invx = make([]float64, len(x))
+		for k, v := range x {
+			if a := math.Sqrt(real(v)*real(v) + imag(v)*imag(v)); a > 0 {
+				p.invx[k] = 1 / a
+			}
+		}
+	case SymmetricOrth:
+		off := 0
+		seg := make([][]complex128, len(z))
+		for _, l := range segs {
+			for c := range z {
+				seg[c] = z[c][off : off+l]
+			}
+			p.grams = append(p.grams, RealGram(seg))
+			off += l
+		}
+	default:
+		p.ex = Envelope(nil, x, bin, segs, kind)
+	}
+	return p
+}
+
+// Terms returns the terms with channel j's band signal replaced by yj.
+func (p *PairTermer) Terms(yj []complex128) ([][2][]float64, error) {
+	x := p.z[p.i]
+	if len(yj) != len(x) {
+		panic("connect: PairTerms length mismatch")
+	}
+	switch p.corr {
+	case PairwiseOrth:
+		nb := NBins(len(x), p.bin, p.segs)
+		yx, ey, xy := make([]float64, nb), make([]float64, nb), make([]float64, nb)
+		logp := p.kind == LogPower
+		binSegs(len(x), p.bin, p.segs, func(b, lo, hi int) {
+			var s1, s2, s3 float64
+			for k := lo; k < hi; k++ {
+				xv, yv := x[k], yj[k]
+				// c = Im(y·x̄); |Y⊥X| = |c|/|x|, |X⊥Y| = |c|/|y| (OrthAmp)
+				c := imag(yv)*real(xv) - real(yv)*imag(xv)
+				p2 := real(yv)*real(yv) + imag(yv)*imag(yv)
+				if logp {
+					ix := p.invx[k]
+					s1 += c * c * ix * ix
+					s2 += p2
+					if p2 > 0 {
+						s3 += c * c / p2
+					}
+					continue
+				}
+				ay := math.Sqrt(p2)
+				ac := math.Abs(c)
+				s1 += ac * p.invx[k]
+				s2 += ay
+				if ay > 0 {
+					s3 += ac / ay
+				}
+			}
+			yx[b] = finishBin(s1, p.bin, p.kind)
+			ey[b] = finishBin(s2, p.bin, p.kind)
+			xy[b] = finishBin(s3, p.bin, p.kind)
+		})
+		return [][2][]float64{{p.ex, yx}, {ey, xy}}, nil
+	case SymmetricOrth:
+		n := len(p.z)
+		var ex, ey []float64
+		off := 0
+		for s, l := range p.segs {
+			g := append([]float64(nil), p.grams[s]...)
+			yr := yj[off : off+l]
+			for c := range n {
+				zc := p.z[c][off : off+l]
+				if c == p.j {
+					zc = yr
+				}
+				v := 0.0
+				for k := range yr {
+					v += real(yr[k]) * real(zc[k])
+				}
+				g[p.j*n+c], g[c*n+p.j] = v, v
+			}
+			w, _, err := ClosestOrthogonal(g, n)
+			if err != nil {
+				return nil, err
+			}
+			// The two output rows, sample by sample, straight into their bins.
+			zc := make([][]complex128, n)
+			for c := range n {
+				zc[c] = p.z[c][off : off+l]
+			}
+			zc[p.j] = yr
+			wi, wj := w[p.i*n:(p.i+1)*n], w[p.j*n:(p.j+1)*n]
+			nb := l / p.bin
+			bx, by := make([]float64, nb), make([]float64, nb)
+			for b := range nb {
+				var sx, sy float64
+				for k := b * p.bin; k < (b+1)*p.bin; k++ {
+					var ir, ii, jr, ji float64
+					for c, zz := range zc {
+						v := zz[k]
+						ir += wi[c] * real(v)
+						ii += wi[c] * imag(v)
+						jr += wj[c] * real(v)
+						ji += wj[c] * imag(v)
+					}
+					if p.kind == LogPower {
+						sx += ir*ir + ii*ii
+						sy += jr*jr + ji*ji
+					} else {
+						sx += math.Sqrt(ir*ir + ii*ii)
+						sy += math.Sqrt(jr*jr + ji*ji)
+					}
+				}
+				bx[b], by[b] = finishBin(sx, p.bin, p.kind), finishBin(sy, p.bin, p.kind)
+			}
+			ex = append(ex, bx...)
+			ey = append(ey, by...)
+			off += l
+		}
+		return [][2][]float64{{ex, ey}}, nil
+	default:
+		return [][2][]float64{{p.ex, Envelope(nil, yj, p.bin, p.segs, p.kind)}}, nil
+	}
+}
+
+// PermuteSegments writes y with its segments of segLen samples reordered
+// into dst and returns it: segment k of dst is segment perm[k] of y. A
+// trial-shuffle surrogate pairs trial k of X with trial perm[k] of Y.
+func PermuteSegments(dst, y []complex128, segLen int, perm []int) []complex128 {
+	if len(perm)*segLen != len(y) {
+		panic("connect: PermuteSegments length mismatch")
+	}
+	if cap(dst) < len(y) {
+		dst = make([]complex128, len(y))
+	}
+	dst = dst[:len(y)]
+	for k, p := range perm {
+		copy(dst[k*segLen:(k+1)*segLen], y[p*segLen:(p+1)*segLen])
+	}
+	return dst
+}

@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"math"
+	"math/cmplx"
 	"math/rand/v2"
 	"os"
 	"path/filepath"
@@ -165,6 +166,96 @@ func TestRotate(t *testing.T) {
 		for k := range y {
 			if got[k] != y[(k+lag)%len(y)] {
 				t.Fatalf("lag %d: %v", lag, got)
+			}
+		}
+	}
+}
+
+// PairTerms of a shifted Y against the definitions: pairwise terms are
+// |X| with mean |Im(y_s·x̄)|/|x| and |Y_s| with mean |Im(x·ȳ_s)|/|y_s| per
+// bin (OrthAmp; Hipp et al. 2012), computed here sample by sample on the
+// shifted copy; symmetric terms are the envelopes of SymmetricCorrect of
+// the set with Y shifted, segment by segment.
+func TestPairTermsShifted(t *testing.T) {
+	rng := rand.New(rand.NewPCG(33, 1))
+	const n, m, bin, lag = 3, 120, 4, 37
+	z := make([][]complex128, n)
+	for c := range z {
+		z[c] = make([]complex128, m)
+		for k := range z[c] {
+			z[c][k] = envRandComplex(rng)
+		}
+	}
+	for k := range m { // leakage of channel 0 into 1
+		z[1][k] += 0.7 * z[0][k]
+	}
+	segs := []int{70, 50}
+	ys := Rotate(nil, z[1], lag)
+	for _, kind := range []EnvKind{Amplitude, LogPower} {
+		fin := func(s float64) float64 {
+			if kind == LogPower {
+				return math.Log(s / bin)
+			}
+			return s / bin
+		}
+		amp := func(v float64) float64 {
+			if kind == LogPower {
+				return v * v
+			}
+			return math.Abs(v)
+		}
+		terms, err := PairTerms(z, 0, 1, ys, PairwiseOrth, bin, segs, kind)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var want [4][]float64
+		off := 0
+		for _, l := range segs {
+			for s := 0; s+bin <= l; s += bin {
+				var a, b, c, d float64
+				for k := off + s; k < off+s+bin; k++ {
+					a += amp(cmplx.Abs(z[0][k]))
+					b += amp(OrthAmp(z[0][k], ys[k]))
+					c += amp(cmplx.Abs(ys[k]))
+					d += amp(OrthAmp(ys[k], z[0][k]))
+				}
+				for i, v := range []float64{a, b, c, d} {
+					want[i] = append(want[i], fin(v))
+				}
+			}
+			off += l
+		}
+		got := [4][]float64{terms[0][0], terms[0][1], terms[1][0], terms[1][1]}
+		for i := range got {
+			if len(got[i]) != len(want[i]) {
+				t.Fatalf("kind %d series %d: %d bins, want %d", kind, i, len(got[i]), len(want[i]))
+			}
+			for b := range got[i] {
+				if !closeRel(got[i][b], want[i][b], 1e-12) {
+					t.Errorf("kind %d pairwise series %d bin %d = %.15g, want %.15g", kind, i, b, got[i][b], want[i][b])
+				}
+			}
+		}
+		// Symmetric: the set with Y shifted, corrected per segment.
+		terms, err = PairTerms(z, 0, 1, ys, SymmetricOrth, bin, segs, kind)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var wx, wy []float64
+		off = 0
+		for _, l := range segs {
+			set := [][]complex128{z[0][off : off+l], ys[off : off+l], z[2][off : off+l]}
+			o, err := SymmetricCorrect(set, []int{0, 1})
+			if err != nil {
+				t.Fatal(err)
+			}
+			wx = append(wx, Envelope(nil, o[0], bin, nil, kind)...)
+			wy = append(wy, Envelope(nil, o[1], bin, nil, kind)...)
+			off += l
+		}
+		for b := range wx {
+			if !closeRel(terms[0][0][b], wx[b], 1e-9) || !closeRel(terms[0][1][b], wy[b], 1e-9) {
+				t.Fatalf("kind %d symmetric bin %d: %v, %v, want %v, %v", kind, b, terms[0][0][b], terms[0][1][b], wx[b], wy[b])
 			}
 		}
 	}

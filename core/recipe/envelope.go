@@ -56,6 +56,10 @@ type envPlan struct {
 	como    bool
 	freqs   []float64
 	discard float64 // s discarded at the edges of each trial or of the recording
+	kind    connect.EnvKind
+	storeZ  bool     // units also return the band signals (orthogonalised surrogates)
+	uspans  [][2]int // span of every unit, in unit order
+	segLen  int      // samples per segment of the time course (0: none)
 }
 
 // term is one pair of series to correlate: series indices into the unit's
@@ -108,6 +112,9 @@ func (p *Plan) planEnvelope(path string, a *Analysis) (finisher, error) {
 	if !ep.como && len(ep.chans) < 2 && a.TargetFreq == nil {
 		return nil, ferr(path+".channels", "needs at least two channels (or a targetFreq band for one channel)")
 	}
+	if a.Orthogonalize == OrthSymmetric && a.Segment > 0 {
+		return nil, ferr(path+".segment", "is not available with symmetric orthogonalisation, whose weights need the whole recording")
+	}
 	if a.Orthogonalize == OrthSymmetric && len(ep.chans) < 2 {
 		return nil, ferr(path+".orthogonalize", "symmetric orthogonalisation needs at least two channels")
 	}
@@ -137,7 +144,15 @@ func (p *Plan) planEnvelope(path string, a *Analysis) (finisher, error) {
 			}
 		}
 	}
-	half := max(p.bank.MaxHalf(ep.fa), p.bank.MaxHalf(ep.fb))
+	// The margin is the widest wavelet of the band(s) analysed (MaxHalf(nil)
+	// would be the whole grid's).
+	half := p.bank.MaxHalf(ep.fa)
+	if ep.fb != nil {
+		half = max(half, p.bank.MaxHalf(ep.fb))
+	}
+	if a.Envelope == "log-power" {
+		ep.kind = connect.LogPower
+	}
 	ep.src.margin = half
 	ep.discard = 2 * float64(half) / ep.rate
 	ep.bin = 1
@@ -175,6 +190,7 @@ func (p *Plan) planEnvelope(path string, a *Analysis) (finisher, error) {
 		step := chunkLen / ep.bin * ep.bin
 		if a.Segment > 0 {
 			step = int(math.Round(a.Segment*ep.rate)) / ep.bin * ep.bin
+			ep.segLen = step
 			if step < 3*ep.bin {
 				return nil, ferr(path+".segment", "%g s is too short", a.Segment)
 			}
@@ -186,10 +202,7 @@ func (p *Plan) planEnvelope(path string, a *Analysis) (finisher, error) {
 			step = hi - lo // one unit: the weights need the whole recording
 		}
 		for s := lo; s+ep.bin <= hi; s += step {
-			e := min(s+step, hi)
-			if a.Segment > 0 && e-s < step {
-				break // a last, partial segment would not be comparable
-			}
+			e := min(s+step, hi) // a last, partial segment counts for the recording, not for the time course
 			ep.spans = append(ep.spans, [2]int{s, e})
 			ep.units = append(ep.units, p.envUnit(ep, len(ep.spans)-1, [2]int{s, e}))
 			total += (e - s) / ep.bin
@@ -198,11 +211,16 @@ func (p *Plan) planEnvelope(path string, a *Analysis) (finisher, error) {
 	spearman := a.Method == "spearman"
 	ep.store = spearman || a.Surrogates > 0 || !ep.epoched || a.Trials == "concatenate"
 	ep.storeOr = a.Orthogonalize == OrthPairwise && (spearman || a.Surrogates > 0)
+	ep.storeZ = a.Orthogonalize != OrthNone && a.Surrogates > 0
 	if ep.como {
-		ep.store = false
+		ep.store, ep.storeZ = false, false
 	}
 	if ep.store {
-		if v := ep.storedSeries() * total; v > maxStoredValues {
+		v := ep.storedSeries() * total
+		if ep.storeZ {
+			v += 2 * len(ep.chans) * total * ep.bin // the band signals at the full rate
+		}
+		if v > maxStoredValues {
 			return nil, ferr(path+".envelopeRate", "keeping %d envelope series of %d samples needs %d MB; set envelopeRate (for example 20 Hz) to bin the envelopes", ep.storedSeries(), total, v*8>>20)
 		}
 	}
@@ -275,6 +293,7 @@ func (ep *envPlan) storedSeries() int {
 
 func (p *Plan) envUnit(ep *envPlan, seg int, span [2]int) int {
 	id := len(p.units)
+	ep.uspans = append(ep.uspans, span)
 	cost := float64(len(ep.chans)*(span[1]-span[0])) * float64(len(ep.fa)+len(ep.fb)+len(ep.terms))
 	p.units = append(p.units, unit{
 		Unit: Unit{ID: id, Kind: ep.a.Type, Channels: ep.names, Cost: cost},
@@ -290,8 +309,6 @@ func (p *Plan) envUnit(ep *envPlan, seg int, span [2]int) int {
 func (ep *envPlan) compute(ctx context.Context, p *Plan, seg int, span [2]int) ([]float64, error) {
 	a := ep.a
 	n := len(ep.chans)
-	m := span[1] - span[0]
-	nb := m / ep.bin
 	var za, zb [][]complex128
 	convs := map[int]*spectral.Convolver{}
 	band := func(ch int, freqs []int) []complex128 {
@@ -325,60 +342,33 @@ func (ep *envPlan) compute(ctx context.Context, p *Plan, seg int, span [2]int) (
 			}
 		}
 	}
+	var raw [][]complex128 // the band signals before a symmetric correction
+	if ep.storeZ {
+		raw = append(raw, za...)
+	}
 	if a.Orthogonalize == OrthSymmetric {
 		if err := ep.symmetric(za); err != nil {
 			return nil, err
 		}
 	}
-	// Binned envelopes.
-	bin := func(dst []float64, f func(k int) float64) []float64 {
-		dst = dst[:0]
-		for b := range nb {
-			s := 0.0
-			for k := b * ep.bin; k < (b+1)*ep.bin; k++ {
-				s += f(k)
-			}
-			dst = append(dst, s/float64(ep.bin))
-		}
-		return dst
-	}
-	abs := func(z []complex128) func(int) float64 {
-		return func(k int) float64 { return math.Hypot(real(z[k]), imag(z[k])) }
-	}
+	// Binned envelopes (connect.Envelope, connect.OrthEnvelope).
 	series := make([][]float64, ep.nSeries+len(ep.chans)*(len(ep.chans)-1))
 	for i, z := range za {
-		series[i] = bin(nil, abs(z))
+		series[i] = connect.Envelope(nil, z, ep.bin, nil, ep.kind)
 	}
 	for i, z := range zb {
-		series[n+i] = bin(nil, abs(z))
+		series[n+i] = connect.Envelope(nil, z, ep.bin, nil, ep.kind)
 	}
 	if a.Orthogonalize == OrthPairwise {
-		// |Y⊥X| = |Im(y·x̄)|/|x| = |Im(y·ū)| with the unit phasor u = x/|x|
-		// (connect.OrthAmp), so each channel's phasors are computed once.
-		inv := 1 / float64(ep.bin)
-		u := make([]complex128, m)
+		// |Y⊥X| = |Im(y·ū)| with the unit phasors u = x/|x|, so each
+		// channel's phasors are computed once.
+		var u []complex128
 		for i := range n {
-			for k, v := range za[i] {
-				u[k] = 0
-				if a := math.Hypot(real(v), imag(v)); a > 0 {
-					u[k] = complex(real(v)/a, imag(v)/a)
-				}
-			}
+			u = connect.UnitPhasors(u, za[i])
 			for j := range n {
-				if i == j {
-					continue
+				if i != j {
+					series[ep.orthSeries(i, j)] = connect.OrthEnvelope(nil, u, za[j], ep.bin, nil, ep.kind)
 				}
-				y := za[j]
-				dst := make([]float64, nb)
-				for b := range nb {
-					sum := 0.0
-					for k := b * ep.bin; k < (b+1)*ep.bin; k++ {
-						// Im(y·ū) = imag(y)·real(u) − real(y)·imag(u)
-						sum += math.Abs(imag(y[k])*real(u[k]) - real(y[k])*imag(u[k]))
-					}
-					dst[b] = sum * inv
-				}
-				series[ep.orthSeries(i, j)] = dst
 			}
 		}
 	}
@@ -394,6 +384,11 @@ func (ep *envPlan) compute(ctx context.Context, p *Plan, seg int, span [2]int) (
 	if ep.store {
 		for s := range ep.storedSeries() {
 			out = append(out, series[s]...)
+		}
+	}
+	for _, z := range raw {
+		for _, v := range z {
+			out = append(out, real(v), imag(v))
 		}
 	}
 	return out, nil
@@ -412,9 +407,21 @@ func (ep *envPlan) symmetric(z [][]complex128) error {
 
 // unitParts splits a unit's values into the co-moments of each term and the
 // stored series.
-func (ep *envPlan) unitParts(v []float64) (mo []connect.Moments, series [][]float64) {
+func (ep *envPlan) unitParts(u int, v []float64) (mo []connect.Moments, series [][]float64, raw [][]complex128) {
 	for t := range ep.terms {
 		mo = append(mo, connect.MomentsFrom(v[6*t:]))
+	}
+	if ep.storeZ {
+		m := ep.uspans[u][1] - ep.uspans[u][0]
+		z := v[len(v)-2*m*len(ep.chans):]
+		v = v[:len(v)-len(z)]
+		for c := range ep.chans {
+			zc := make([]complex128, m)
+			for k := range zc {
+				zc[k] = complex(z[2*(c*m+k)], z[2*(c*m+k)+1])
+			}
+			raw = append(raw, zc)
+		}
 	}
 	if ep.store {
 		rest := v[6*len(ep.terms):]
@@ -424,21 +431,32 @@ func (ep *envPlan) unitParts(v []float64) (mo []connect.Moments, series [][]floa
 			series = append(series, rest[s*l:(s+1)*l])
 		}
 	}
-	return mo, series
+	return mo, series, raw
 }
 
 func (ep *envPlan) finish(ctx context.Context, p *Plan, res []UnitResult, out *report.Results) error {
 	a := ep.a
 	nu := len(ep.units)
 	mos := make([][]connect.Moments, nu)
-	var stored [][]float64 // per series, concatenated over units
-	var unitLen []int      // stored samples per unit
+	var stored [][]float64   // per series, concatenated over units
+	var unitLen []int        // stored samples per unit
+	var bands [][]complex128 // band signals per channel, concatenated over units
+	var rawLen []int         // band-signal samples per unit
 	if ep.store {
 		stored = make([][]float64, ep.storedSeries())
 	}
+	if ep.storeZ {
+		bands = make([][]complex128, len(ep.chans))
+	}
 	for u, id := range ep.units {
-		mo, series := ep.unitParts(res[id].Values)
+		mo, series, raw := ep.unitParts(u, res[id].Values)
 		mos[u] = mo
+		if ep.storeZ {
+			rawLen = append(rawLen, len(raw[0]))
+			for c := range raw {
+				bands[c] = append(bands[c], raw[c]...)
+			}
+		}
 		if ep.store {
 			unitLen = append(unitLen, len(series[0]))
 			for s := range series {
@@ -493,7 +511,7 @@ func (ep *envPlan) finish(ctx context.Context, p *Plan, res []UnitResult, out *r
 				note = joinNote(note, fmt.Sprintf("%d of %d trials had an undefined r and were left out", nu-len(zs), nu))
 			}
 			if a.Surrogates > 0 && !math.IsNaN(r) {
-				psurr = ep.trialShuffle(pr, stored, unitLen, r, rng, spearman)
+				psurr = ep.trialShuffle(pr, stored, unitLen, r, rng, spearman, bands, rawLen)
 			}
 		default:
 			if spearman {
@@ -517,9 +535,9 @@ func (ep *envPlan) finish(ctx context.Context, p *Plan, res []UnitResult, out *r
 				pmethod = "effective-n"
 				if a.Surrogates > 0 {
 					if ep.epoched {
-						psurr = ep.trialShuffle(pr, stored, unitLen, r, rng, spearman)
+						psurr = ep.trialShuffle(pr, stored, unitLen, r, rng, spearman, bands, rawLen)
 					} else {
-						psurr = ep.timeShift(pr, stored, r, rng, spearman)
+						psurr = ep.timeShift(pr, stored, r, rng, spearman, bands, rawLen)
 					}
 				}
 			}
@@ -548,6 +566,7 @@ func (ep *envPlan) finish(ctx context.Context, p *Plan, res []UnitResult, out *r
 			{Name: "n_eff", Value: report.Num(neff)},
 			{Name: "p_method", Value: pmethod},
 			{Name: "p_surr", Value: report.Num(psurr)},
+			{Name: "p_surr_se", Value: report.Num(stats.PermSE(psurr, a.Surrogates))},
 			{Name: "surrogates", Value: strconv.Itoa(a.Surrogates)},
 			{Name: "q", Value: ""},
 			{Name: "correction", Value: a.Correction},
@@ -647,7 +666,10 @@ func corr(x, y []float64, spearman bool) float64 {
 // never less than five times the lag at which either envelope's
 // autocorrelation falls below 1/e), breaking their alignment but not their
 // own temporal structure. p = (b + 1)/(S + 1).
-func (ep *envPlan) timeShift(pr pairRow, stored [][]float64, r float64, rng interface{ IntN(int) int }, spearman bool) float64 {
+func (ep *envPlan) timeShift(pr pairRow, stored [][]float64, r float64, rng interface{ IntN(int) int }, spearman bool, zs [][]complex128, rawLen []int) float64 {
+	if ep.storeZ {
+		return ep.orthSurrogate(pr, stored, nil, r, rng, spearman, zs, rawLen)
+	}
 	n := len(stored[0])
 	minLag := n / 10
 	for _, t := range pr.terms {
@@ -700,7 +722,10 @@ func decorrLag(x []float64) int {
 
 // trialShuffle returns the surrogate p for epoched input: the trials of the
 // second series are paired with randomly permuted trials of the first.
-func (ep *envPlan) trialShuffle(pr pairRow, stored [][]float64, unitLen []int, r float64, rng interface{ IntN(int) int }, spearman bool) float64 {
+func (ep *envPlan) trialShuffle(pr pairRow, stored [][]float64, unitLen []int, r float64, rng interface{ IntN(int) int }, spearman bool, zs [][]complex128, rawLen []int) float64 {
+	if ep.storeZ {
+		return ep.orthSurrogate(pr, stored, unitLen, r, rng, spearman, zs, rawLen)
+	}
 	nt := len(unitLen)
 	off := make([]int, nt+1)
 	for t, l := range unitLen {
@@ -747,17 +772,99 @@ func (ep *envPlan) trialShuffle(pr pairRow, stored [][]float64, unitLen []int, r
 	return stats.PermP(b, ep.a.Surrogates)
 }
 
-// timeCourse is r per segment for every row.
+// orthSurrogate is the surrogate p of an orthogonalised row: channel j's
+// band signal is shifted circularly (recordings, a lag in whole envelope
+// bins drawn as in timeShift, from the envelopes of i and j) or its trials
+// are permuted (epochs, unitLen non-nil), and only then orthogonalised
+// against the unshifted channel i, both ways, or re-orthogonalised with
+// the whole set (connect.PairTerms), and the terms correlated as the
+// observed r was.
+func (ep *envPlan) orthSurrogate(pr pairRow, stored [][]float64, unitLen []int, r float64, rng interface{ IntN(int) int }, spearman bool, zs [][]complex128, rawLen []int) float64 {
+	corr := connect.PairwiseOrth
+	if ep.a.Orthogonalize == OrthSymmetric {
+		corr = connect.SymmetricOrth
+	}
+	zj := zs[pr.j]
+	nb := len(stored[0])
+	minLag := 0
+	if unitLen == nil {
+		minLag = max(nb/10, 5*decorrLag(stored[pr.i]), 5*decorrLag(stored[pr.j]))
+		if 2*minLag >= nb {
+			return math.NaN()
+		}
+	}
+	perm := make([]int, len(rawLen))
+	for i := range perm {
+		perm[i] = i
+	}
+	pt := connect.NewPairTermer(zs, pr.i, pr.j, corr, ep.bin, rawLen, ep.kind)
+	var y []complex128
+	b := 0
+	for range ep.a.Surrogates {
+		if unitLen != nil {
+			for i := len(perm) - 1; i > 0; i-- {
+				k := rng.IntN(i + 1)
+				perm[i], perm[k] = perm[k], perm[i]
+			}
+			y = connect.PermuteSegments(y, zj, rawLen[0], perm)
+		} else {
+			lag := minLag + rng.IntN(nb-2*minLag+1)
+			y = connect.Rotate(y, zj, lag*ep.bin%len(zj))
+		}
+		terms, err := pt.Terms(y)
+		if err != nil {
+			return math.NaN()
+		}
+		rs := make([]float64, len(terms))
+		for t, tm := range terms {
+			rs[t] = ep.surrR(tm[0], tm[1], unitLen, spearman)
+		}
+		if rsur := meanR(rs); !math.IsNaN(rsur) && math.Abs(rsur) >= math.Abs(r)-1e-12 {
+			b++
+		}
+	}
+	return stats.PermP(b, ep.a.Surrogates)
+}
+
+// surrR correlates a surrogate's pair of series as the observed r: over
+// all samples, or per trial and averaged on Fisher's z (epochs averaged).
+func (ep *envPlan) surrR(x, y []float64, unitLen []int, spearman bool) float64 {
+	if unitLen == nil || ep.a.Trials == "concatenate" {
+		return corr(x, y, spearman)
+	}
+	var zs []float64
+	off := 0
+	for _, l := range unitLen {
+		if rk := corr(x[off:off+l], y[off:off+l], spearman); !math.IsNaN(rk) {
+			zs = append(zs, math.Atanh(math.Max(-1+1e-15, math.Min(1-1e-15, rk))))
+		}
+		off += l
+	}
+	if len(zs) == 0 {
+		return math.NaN()
+	}
+	return math.Tanh(mean(zs))
+}
+
+// timeCourse is r per segment for every row. A last, partial segment
+// counts for the recording's r but is left out here, where it would not be
+// comparable with the full ones.
 func (ep *envPlan) timeCourse(mos [][]connect.Moments) report.Map {
 	m := report.Map{Name: ep.a.ID + "_timecourse", RowName: "pair", ColName: "segment_start_s"}
+	full := 0
 	for _, sp := range ep.spans {
-		m.ColLabels = append(m.ColLabels, report.Num(roundTime(float64(sp[0])/ep.rate)))
+		if sp[1]-sp[0] == ep.segLen {
+			m.ColLabels = append(m.ColLabels, report.Num(roundTime(float64(sp[0])/ep.rate)))
+			full++
+		}
 	}
 	for _, pr := range ep.rows {
 		m.RowLabels = append(m.RowLabels, pr.seed+"-"+pr.target)
-		vals := make([]float64, len(ep.spans))
-		for u := range ep.spans {
-			vals[u] = meanR(ep.termRs(pr, func(t int) float64 { return mos[u][t].R() }))
+		vals := make([]float64, 0, full)
+		for u, sp := range ep.spans {
+			if sp[1]-sp[0] == ep.segLen {
+				vals = append(vals, meanR(ep.termRs(pr, func(t int) float64 { return mos[u][t].R() })))
+			}
 		}
 		m.Values = append(m.Values, vals)
 	}
