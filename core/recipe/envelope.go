@@ -551,8 +551,11 @@ func (ep *envPlan) finish(ctx context.Context, p *Plan, res []UnitResult, out *r
 				rmat[pr.j][pr.i] = r
 			}
 		}
-		if a.Orthogonalize != OrthNone {
-			note = joinNote(note, "orthogonalised: zero-lag coupling, genuine or leaked, is removed")
+		switch a.Orthogonalize {
+		case OrthPairwise:
+			note = joinNote(note, "pairwise orthogonalised (Hipp et al. 2012): the part of each signal at zero phase lag to the other is removed, so genuine zero-lag coupling is removed as well as leakage")
+		case OrthSymmetric:
+			note = joinNote(note, "closest orthogonal set (Colclough et al. 2015): every zero-lag correlation among the listed channels' band signals is removed, genuine zero-lag coupling as well as leakage")
 		}
 		row.Extra = []report.Field{
 			{Name: "band_fmin", Value: report.Num(p.freqs[ep.fa[0]])},
@@ -560,6 +563,7 @@ func (ep *envPlan) finish(ctx context.Context, p *Plan, res []UnitResult, out *r
 			{Name: "target_band_fmin", Value: ep.fbNum(p, 0)},
 			{Name: "target_band_fmax", Value: ep.fbNum(p, len(ep.fb)-1)},
 			{Name: "orthogonalize", Value: orthName(a.Orthogonalize)},
+			{Name: "envelope", Value: envName(a.Envelope)},
 			{Name: "over", Value: ep.overName()},
 			{Name: "envelope_rate", Value: report.Num(ep.rate / float64(ep.bin))},
 			{Name: "edge_discard_s", Value: report.Num(ep.discard)},
@@ -608,6 +612,14 @@ func (ep *envPlan) overName() string {
 		return "epochs-concatenated"
 	}
 	return "epochs-averaged"
+}
+
+// envName is the envelope column: "amplitude" or "log-power".
+func envName(e string) string {
+	if e == "" {
+		return "amplitude"
+	}
+	return e
 }
 
 func orthName(o Orth) string {
@@ -916,6 +928,7 @@ func (ep *envPlan) comoRows(vals [][]float64, best float64, bi, bj, n int, out *
 		{Name: "band_fmin", Value: peak(ep.fa, bi)}, {Name: "band_fmax", Value: peak(ep.fa, bi)},
 		{Name: "target_band_fmin", Value: peak(ep.fb, bj)}, {Name: "target_band_fmax", Value: peak(ep.fb, bj)},
 		{Name: "over", Value: ep.overName()},
+		{Name: "envelope", Value: envName(a.Envelope)},
 		{Name: "envelope_rate", Value: report.Num(ep.rate / float64(ep.bin))},
 		{Name: "edge_discard_s", Value: report.Num(ep.discard)},
 		{Name: "note", Value: fmt.Sprintf("peak |r| of the %d×%d map in maps/%s_comodulogram.csv; p is not given for a peak picked from a map; neighbouring wavelets overlap in frequency, which inflates r near the diagonal", len(ep.fa), len(ep.fb), a.ID)},

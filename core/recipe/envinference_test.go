@@ -206,3 +206,49 @@ func TestSegmentKeepsRecordingValues(t *testing.T) {
 	}
 	t.Error("no time course map")
 }
+
+// envelope: "log-power" correlates ln of the binned power (checked against
+// numpy in core/connect TestEnvelopeKindsNumpy) and says so in its own
+// column. Common practice (Hipp et al. 2012, Nat Neurosci 15:884, who
+// correlate log power envelopes): leakage still gives a high plain r and an
+// orthogonalised r near 0; genuine envelope coupling stays high.
+func TestLogPowerEnvelope(t *testing.T) {
+	res := runSynthDS(t, `{
+  "spectral": {"low": 4, "high": 48, "steps": 23, "cycles": [4, 8]},
+  "analyses": [
+    {"id": "amp", "type": "envelope", "channels": ["S", "L", "G"], "freq": [9, 11], "envelopeRate": 20},
+    {"id": "logp", "type": "envelope", "channels": ["S", "L", "G"], "freq": [9, 11], "envelopeRate": 20, "envelope": "log-power"},
+    {"id": "logo", "type": "envelope", "channels": ["S", "L", "G"], "freq": [9, 11], "envelopeRate": 20, "envelope": "log-power", "orthogonalize": true}
+  ]
+}`, &Dataset{Name: "env", Recording: envRecording()})
+	amp, logp := rowFor(t, res, "amp", "S", "G"), rowFor(t, res, "logp", "S", "G")
+	if field(amp, "envelope") != "amplitude" || field(logp, "envelope") != "log-power" {
+		t.Errorf("envelope columns %q, %q", field(amp, "envelope"), field(logp, "envelope"))
+	}
+	if amp.R == logp.R {
+		t.Errorf("log-power r equals the amplitude r (%v): the option is not used", amp.R)
+	}
+	if r := rowFor(t, res, "logp", "S", "L").R; r < 0.8 {
+		t.Errorf("log-power S–L (leakage) r = %.3f, want > 0.8", r)
+	}
+	if r := rowFor(t, res, "logo", "S", "L").R; math.Abs(r) > 0.15 {
+		t.Errorf("orthogonalised log-power S–L (leakage) r = %.3f, want |r| < 0.15", r)
+	}
+	if logp.R < 0.8 || rowFor(t, res, "logo", "S", "G").R < 0.6 {
+		t.Errorf("log-power S–G r = %.3f, orthogonalised %.3f; want > 0.8 and > 0.6", logp.R, rowFor(t, res, "logo", "S", "G").R)
+	}
+	if _, err := Parse([]byte(`{"analyses": [{"id": "x", "type": "envelope", "channels": "*", "freq": [8, 12], "envelope": "power"}]}`)); err == nil || !strings.Contains(err.Error(), "analyses[0].envelope") {
+		t.Errorf("bad envelope kind: err = %v", err)
+	}
+}
+
+// p_surr_se is PermSE(p_surr, surrogates) (core/stats, checked against
+// scipy.stats.binom).
+func TestSurrogateSE(t *testing.T) {
+	res := runSynthDS(t, envRecipe, &Dataset{Name: "env", Recording: envRecording()})
+	row := rowFor(t, res, "orth", "S", "N")
+	p, _ := parseF(field(row, "p_surr"))
+	if got, want := field(row, "p_surr_se"), report.Num(math.Sqrt(p*(1-p)/99)); got != want {
+		t.Errorf("p_surr_se = %q, want %q (p_surr %v, 99 surrogates)", got, want, p)
+	}
+}
