@@ -123,23 +123,6 @@ func resize(dst []float64, n int) []float64 {
 	return dst[:n]
 }
 
-// Rotate writes y circularly shifted by lag samples into dst and returns
-// it: dst[t] = y[(t+lag) mod len(y)], 0 ≤ lag < len(y). Time-shift
-// surrogates shift a band signal this way before it is orthogonalised.
-func Rotate(dst, y []complex128, lag int) []complex128 {
-	n := len(y)
-	if lag < 0 || (n > 0 && lag >= n) {
-		panic("connect: Rotate lag out of range")
-	}
-	if cap(dst) < n {
-		dst = make([]complex128, n)
-	}
-	dst = dst[:n]
-	copy(dst, y[lag:])
-	copy(dst[n-lag:], y[:lag])
-	return dst
-}
-
 // Leakage is a leakage correction for PairTerms.
 type Leakage uint8
 
@@ -169,18 +152,47 @@ func PairTerms(z [][]complex128, i, j int, yj []complex128, corr Leakage, bin in
 }
 
 // PairTermer is PairTerms prepared once for many replacements of channel
-// j: what does not depend on yj (|X| and 1/|X|, the Gram matrix of the
-// other channels per segment) is computed once.
+// j: what does not depend on the replacement (|X| and 1/|X|, the Gram
+// matrix of the other channels per segment) is computed once, and Shifted
+// and Permuted read channel j's own signal at an offset instead of copying
+// it.
 type PairTermer struct {
-	z     [][]complex128
-	i, j  int
-	corr  Leakage
-	bin   int
-	segs  []int
-	kind  EnvKind
-	ex    []float64   // envelope of X
-	invx  []float64   // 1/|x| (0 where x is 0)
-	grams [][]float64 // symmetric: the real Gram matrix per segment
+	z      [][]complex128
+	i, j   int
+	corr   Leakage
+	bin    int
+	segs   []int
+	kind   EnvKind
+	ex     []float64   // envelope of X
+	xr, xi []float64   // X
+	invx   []float64   // 1/|x| (Amplitude) or 1/|x|² (LogPower); 0 where x is 0
+	grams  [][]float64 // symmetric: the real Gram matrix per segment
+	own    *ySource    // channel j's own signal, twice over (for Shifted)
+}
+
+// ySource is a replacement Y in the form the loops read: real and
+// imaginary parts, |y| (or |y|²) and its inverse (0 where y is 0).
+type ySource struct{ re, im, a, inv []float64 }
+
+func newYSource(y []complex128, times int, kind EnvKind) *ySource {
+	n := len(y)
+	s := &ySource{re: make([]float64, n*times), im: make([]float64, n*times), a: make([]float64, n*times), inv: make([]float64, n*times)}
+	for k, v := range y {
+		p2 := real(v)*real(v) + imag(v)*imag(v)
+		a := p2
+		if kind != LogPower {
+			a = math.Sqrt(p2)
+		}
+		inv := 0.0
+		if a > 0 {
+			inv = 1 / a
+		}
+		for t := range times {
+			q := t*n + k
+			s.re[q], s.im[q], s.a[q], s.inv[q] = real(v), imag(v), a, inv
+		}
+	}
+	return s
 }
 
 // NewPairTermer prepares PairTerms for the pair (i, j) of z.
@@ -193,12 +205,8 @@ func NewPairTermer(z [][]complex128, i, j int, corr Leakage, bin int, segs []int
 	switch corr {
 	case PairwiseOrth:
 		p.ex = Envelope(nil, x, bin, segs, kind)
-		p.invx = make([]float64, len(x))
-		for k, v := range x {
-			if a := math.Sqrt(real(v)*real(v) + imag(v)*imag(v)); a > 0 {
-				p.invx[k] = 1 / a
-			}
-		}
+		xs := newYSource(x, 1, kind)
+		p.xr, p.xi, p.invx = xs.re, xs.im, xs.inv
 	case SymmetricOrth:
 		off := 0
 		seg := make([][]complex128, len(z))
@@ -217,38 +225,67 @@ func NewPairTermer(z [][]complex128, i, j int, corr Leakage, bin int, segs []int
 
 // Terms returns the terms with channel j's band signal replaced by yj.
 func (p *PairTermer) Terms(yj []complex128) ([][2][]float64, error) {
-	x := p.z[p.i]
-	if len(yj) != len(x) {
+	if len(yj) != len(p.z[p.i]) {
 		panic("connect: PairTerms length mismatch")
 	}
+	return p.terms(newYSource(yj, 1, p.kind), func(lo int) int { return lo })
+}
+
+// Shifted is Terms(y) for channel j's own signal shifted circularly by
+// lag samples, y[t] = z_j[(t+lag) mod n] (0 ≤ lag < n): a time-shift
+// surrogate.
+func (p *PairTermer) Shifted(lag int) ([][2][]float64, error) {
+	n := len(p.z[p.j])
+	if lag < 0 || lag >= n {
+		panic("connect: Shifted lag out of range")
+	}
+	if p.own == nil {
+		p.own = newYSource(p.z[p.j], 2, p.kind)
+	}
+	return p.terms(p.own, func(lo int) int { return lo + lag })
+}
+
+// Permuted is Terms(y) for channel j's own signal with its segments of
+// segLen samples reordered, segment k of y being segment perm[k] of z_j: a
+// trial-shuffle surrogate. Every segment of segs must be segLen long.
+func (p *PairTermer) Permuted(perm []int, segLen int) ([][2][]float64, error) {
+	if len(perm)*segLen != len(p.z[p.j]) {
+		panic("connect: Permuted length mismatch")
+	}
+	if p.own == nil {
+		p.own = newYSource(p.z[p.j], 2, p.kind)
+	}
+	return p.terms(p.own, func(lo int) int { return perm[lo/segLen]*segLen + lo%segLen })
+}
+
+// terms computes the terms with Y read from y: the samples of a bin (or,
+// for symmetric, of a segment) starting at lo are y[src(lo) …].
+func (p *PairTermer) terms(y *ySource, src func(lo int) int) ([][2][]float64, error) {
+	x := p.z[p.i]
+	logp := p.kind == LogPower
 	switch p.corr {
 	case PairwiseOrth:
 		nb := NBins(len(x), p.bin, p.segs)
 		yx, ey, xy := make([]float64, nb), make([]float64, nb), make([]float64, nb)
-		logp := p.kind == LogPower
 		binSegs(len(x), p.bin, p.segs, func(b, lo, hi int) {
 			var s1, s2, s3 float64
-			for k := lo; k < hi; k++ {
-				xv, yv := x[k], yj[k]
+			q0 := src(lo) - lo
+			l := hi - lo
+			xr, xi, invx := p.xr[lo:hi], p.xi[lo:hi:hi], p.invx[lo:hi:hi]
+			yr, yi := y.re[lo+q0:lo+q0+l:lo+q0+l], y.im[lo+q0:lo+q0+l:lo+q0+l]
+			ya, yinv := y.a[lo+q0:lo+q0+l:lo+q0+l], y.inv[lo+q0:lo+q0+l:lo+q0+l]
+			xi, invx, yr, yi, ya, yinv = xi[:len(xr)], invx[:len(xr)], yr[:len(xr)], yi[:len(xr)], ya[:len(xr)], yinv[:len(xr)]
+			for k := range xr {
 				// c = Im(y·x̄); |Y⊥X| = |c|/|x|, |X⊥Y| = |c|/|y| (OrthAmp)
-				c := imag(yv)*real(xv) - real(yv)*imag(xv)
-				p2 := real(yv)*real(yv) + imag(yv)*imag(yv)
+				c := yi[k]*xr[k] - yr[k]*xi[k]
 				if logp {
-					ix := p.invx[k]
-					s1 += c * c * ix * ix
-					s2 += p2
-					if p2 > 0 {
-						s3 += c * c / p2
-					}
-					continue
+					c *= c
+				} else {
+					c = math.Abs(c)
 				}
-				ay := math.Sqrt(p2)
-				ac := math.Abs(c)
-				s1 += ac * p.invx[k]
-				s2 += ay
-				if ay > 0 {
-					s3 += ac / ay
-				}
+				s1 += c * invx[k]
+				s2 += ya[k]
+				s3 += c * yinv[k]
 			}
 			yx[b] = finishBin(s1, p.bin, p.kind)
 			ey[b] = finishBin(s2, p.bin, p.kind)
@@ -261,15 +298,18 @@ func (p *PairTermer) Terms(yj []complex128) ([][2][]float64, error) {
 		off := 0
 		for s, l := range p.segs {
 			g := append([]float64(nil), p.grams[s]...)
-			yr := yj[off : off+l]
+			q0 := src(off)
+			yr, yi := y.re[q0:q0+l], y.im[q0:q0+l]
 			for c := range n {
-				zc := p.z[c][off : off+l]
-				if c == p.j {
-					zc = yr
-				}
 				v := 0.0
-				for k := range yr {
-					v += real(yr[k]) * real(zc[k])
+				if c == p.j {
+					for _, r := range yr {
+						v += r * r
+					}
+				} else {
+					for k, v2 := range p.z[c][off : off+l] {
+						v += yr[k] * real(v2)
+					}
 				}
 				g[p.j*n+c], g[c*n+p.j] = v, v
 			}
@@ -278,26 +318,25 @@ func (p *PairTermer) Terms(yj []complex128) ([][2][]float64, error) {
 				return nil, err
 			}
 			// The two output rows, sample by sample, straight into their bins.
-			zc := make([][]complex128, n)
-			for c := range n {
-				zc[c] = p.z[c][off : off+l]
-			}
-			zc[p.j] = yr
 			wi, wj := w[p.i*n:(p.i+1)*n], w[p.j*n:(p.j+1)*n]
 			nb := l / p.bin
 			bx, by := make([]float64, nb), make([]float64, nb)
 			for b := range nb {
 				var sx, sy float64
 				for k := b * p.bin; k < (b+1)*p.bin; k++ {
-					var ir, ii, jr, ji float64
-					for c, zz := range zc {
-						v := zz[k]
+					ir, ii := wi[p.j]*yr[k], wi[p.j]*yi[k]
+					jr, ji := wj[p.j]*yr[k], wj[p.j]*yi[k]
+					for c := range n {
+						if c == p.j {
+							continue
+						}
+						v := p.z[c][off+k]
 						ir += wi[c] * real(v)
 						ii += wi[c] * imag(v)
 						jr += wj[c] * real(v)
 						ji += wj[c] * imag(v)
 					}
-					if p.kind == LogPower {
+					if logp {
 						sx += ir*ir + ii*ii
 						sy += jr*jr + ji*ji
 					} else {
@@ -313,23 +352,16 @@ func (p *PairTermer) Terms(yj []complex128) ([][2][]float64, error) {
 		}
 		return [][2][]float64{{ex, ey}}, nil
 	default:
-		return [][2][]float64{{p.ex, Envelope(nil, yj, p.bin, p.segs, p.kind)}}, nil
+		nb := NBins(len(x), p.bin, p.segs)
+		e := make([]float64, nb)
+		binSegs(len(x), p.bin, p.segs, func(b, lo, hi int) {
+			q0 := src(lo)
+			sum := 0.0
+			for _, a := range y.a[q0 : q0+hi-lo] {
+				sum += a
+			}
+			e[b] = finishBin(sum, p.bin, p.kind)
+		})
+		return [][2][]float64{{p.ex, e}}, nil
 	}
-}
-
-// PermuteSegments writes y with its segments of segLen samples reordered
-// into dst and returns it: segment k of dst is segment perm[k] of y. A
-// trial-shuffle surrogate pairs trial k of X with trial perm[k] of Y.
-func PermuteSegments(dst, y []complex128, segLen int, perm []int) []complex128 {
-	if len(perm)*segLen != len(y) {
-		panic("connect: PermuteSegments length mismatch")
-	}
-	if cap(dst) < len(y) {
-		dst = make([]complex128, len(y))
-	}
-	dst = dst[:len(y)]
-	for k, p := range perm {
-		copy(dst[k*segLen:(k+1)*segLen], y[p*segLen:(p+1)*segLen])
-	}
-	return dst
 }

@@ -260,3 +260,47 @@ func TestPairTermsShifted(t *testing.T) {
 		}
 	}
 }
+
+// Shifted and Permuted read channel j at an offset; they must equal Terms
+// of an explicitly shifted or permuted copy (Rotate, PermuteSegments).
+func TestPairTermerShiftedPermuted(t *testing.T) {
+	rng := rand.New(rand.NewPCG(34, 1))
+	const n, trials, segLen, bin = 3, 4, 30, 4
+	m := trials * segLen
+	z := make([][]complex128, n)
+	for c := range z {
+		z[c] = make([]complex128, m)
+		for k := range z[c] {
+			z[c][k] = envRandComplex(rng)
+		}
+	}
+	segs := []int{segLen, segLen, segLen, segLen}
+	perm := []int{2, 0, 3, 1}
+	for _, corr := range []Leakage{NoLeakageCorrection, PairwiseOrth, SymmetricOrth} {
+		for _, kind := range []EnvKind{Amplitude, LogPower} {
+			pt := NewPairTermer(z, 0, 2, corr, bin, segs, kind)
+			for _, c := range []struct {
+				name      string
+				got, want func() ([][2][]float64, error)
+			}{
+				{"shifted", func() ([][2][]float64, error) { return pt.Shifted(47) }, func() ([][2][]float64, error) { return pt.Terms(Rotate(nil, z[2], 47)) }},
+				{"permuted", func() ([][2][]float64, error) { return pt.Permuted(perm, segLen) }, func() ([][2][]float64, error) { return pt.Terms(PermuteSegments(nil, z[2], segLen, perm)) }},
+			} {
+				got, err1 := c.got()
+				want, err2 := c.want()
+				if err1 != nil || err2 != nil {
+					t.Fatal(err1, err2)
+				}
+				for tm := range want {
+					for s := range 2 {
+						for b := range want[tm][s] {
+							if !closeRel(got[tm][s][b], want[tm][s][b], 1e-12) {
+								t.Fatalf("leakage %d kind %d %s term %d series %d bin %d: %v, want %v", corr, kind, c.name, tm, s, b, got[tm][s][b], want[tm][s][b])
+							}
+						}
+					}
+				}
+			}
+		}
+	}
+}

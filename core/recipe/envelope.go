@@ -220,6 +220,9 @@ func (p *Plan) planEnvelope(path string, a *Analysis) (finisher, error) {
 		if ep.storeZ {
 			v += 2 * len(ep.chans) * total * ep.bin // the band signals at the full rate
 		}
+		if ep.storeZ && 2*len(ep.chans)*total*ep.bin > maxStoredValues/2 {
+			return nil, ferr(path+".surrogates", "orthogonalised surrogates keep the band signals of %d channels at the full rate, %d MB; analyse fewer channels at a time, or use no surrogates", len(ep.chans), 16*len(ep.chans)*total*ep.bin>>20)
+		}
 		if v > maxStoredValues {
 			return nil, ferr(path+".envelopeRate", "keeping %d envelope series of %d samples needs %d MB; set envelopeRate (for example 20 Hz) to bin the envelopes", ep.storedSeries(), total, v*8>>20)
 		}
@@ -796,7 +799,6 @@ func (ep *envPlan) orthSurrogate(pr pairRow, stored [][]float64, unitLen []int, 
 	if ep.a.Orthogonalize == OrthSymmetric {
 		corr = connect.SymmetricOrth
 	}
-	zj := zs[pr.j]
 	nb := len(stored[0])
 	minLag := 0
 	if unitLen == nil {
@@ -810,44 +812,49 @@ func (ep *envPlan) orthSurrogate(pr pairRow, stored [][]float64, unitLen []int, 
 		perm[i] = i
 	}
 	pt := connect.NewPairTermer(zs, pr.i, pr.j, corr, ep.bin, rawLen, ep.kind)
-	var y []complex128
 	b := 0
 	for range ep.a.Surrogates {
+		var terms [][2][]float64
+		var err error
 		if unitLen != nil {
 			for i := len(perm) - 1; i > 0; i-- {
 				k := rng.IntN(i + 1)
 				perm[i], perm[k] = perm[k], perm[i]
 			}
-			y = connect.PermuteSegments(y, zj, rawLen[0], perm)
+			terms, err = pt.Permuted(perm, rawLen[0])
 		} else {
 			lag := minLag + rng.IntN(nb-2*minLag+1)
-			y = connect.Rotate(y, zj, lag*ep.bin%len(zj))
+			terms, err = pt.Shifted(lag * ep.bin % len(zs[pr.j]))
 		}
-		terms, err := pt.Terms(y)
 		if err != nil {
 			return math.NaN()
 		}
-		rs := make([]float64, len(terms))
-		for t, tm := range terms {
-			rs[t] = ep.surrR(tm[0], tm[1], unitLen, spearman)
-		}
-		if rsur := meanR(rs); !math.IsNaN(rsur) && math.Abs(rsur) >= math.Abs(r)-1e-12 {
+		rsur := ep.surrR(terms, unitLen, spearman)
+		if !math.IsNaN(rsur) && math.Abs(rsur) >= math.Abs(r)-1e-12 {
 			b++
 		}
 	}
 	return stats.PermP(b, ep.a.Surrogates)
 }
 
-// surrR correlates a surrogate's pair of series as the observed r: over
-// all samples, or per trial and averaged on Fisher's z (epochs averaged).
-func (ep *envPlan) surrR(x, y []float64, unitLen []int, spearman bool) float64 {
+// surrR is a surrogate's r from its terms, made as the observed r is: the
+// mean of the terms' r over all samples, or on averaged epochs that mean
+// per trial, then the mean of Fisher z across trials.
+func (ep *envPlan) surrR(terms [][2][]float64, unitLen []int, spearman bool) float64 {
+	rs := make([]float64, len(terms))
 	if unitLen == nil || ep.a.Trials == "concatenate" {
-		return corr(x, y, spearman)
+		for t, tm := range terms {
+			rs[t] = corr(tm[0], tm[1], spearman)
+		}
+		return meanR(rs)
 	}
 	var zs []float64
 	off := 0
 	for _, l := range unitLen {
-		if rk := corr(x[off:off+l], y[off:off+l], spearman); !math.IsNaN(rk) {
+		for t, tm := range terms {
+			rs[t] = corr(tm[0][off:off+l], tm[1][off:off+l], spearman)
+		}
+		if rk := meanR(rs); !math.IsNaN(rk) {
 			zs = append(zs, math.Atanh(math.Max(-1+1e-15, math.Min(1-1e-15, rk))))
 		}
 		off += l
