@@ -121,9 +121,21 @@ func TestSymmetricLeakageAndCoupling(t *testing.T) {
   "spectral": {"low": 4, "high": 48, "steps": 23, "cycles": [4, 8]},
   "analyses": [
     {"id": "leak", "type": "envelope", "channels": ["S", "L"], "freq": [9, 11], "orthogonalize": "symmetric"},
-    {"id": "coupled", "type": "envelope", "channels": ["S", "G"], "freq": [9, 11], "orthogonalize": "symmetric"}
+    {"id": "coupled", "type": "envelope", "channels": ["S", "G"], "freq": [9, 11], "orthogonalize": "symmetric"},
+    {"id": "set", "type": "envelope", "channels": ["S", "L", "G", "N"], "freq": [9, 11], "orthogonalize": "symmetric"}
   ]
 }`, &Dataset{Name: "env", Recording: envRecording()})
+	// In a set of four, the closest orthonormal set rescaled row by row
+	// (the variant this replaced) left S–L at 0.38, S–G at 0.77 and a
+	// spurious L–G of 0.51.
+	for _, c := range []struct {
+		seed, target string
+		lo, hi       float64
+	}{{"S", "L", -0.1, 0.1}, {"S", "G", 0.9, 1}, {"L", "G", -0.1, 0.1}, {"S", "N", -0.1, 0.1}} {
+		if r := rowFor(t, res, "set", c.seed, c.target).R; r < c.lo || r > c.hi {
+			t.Errorf("set of four: %s–%s r = %.4f, want in [%g, %g]", c.seed, c.target, r, c.lo, c.hi)
+		}
+	}
 	leak, coupled := rowFor(t, res, "leak", "S", "L").R, rowFor(t, res, "coupled", "S", "G").R
 	t.Logf("symmetric: leakage pair r = %.4f, coupled pair r = %.4f", leak, coupled)
 	if math.Abs(leak) > 0.1 {
