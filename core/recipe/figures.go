@@ -880,6 +880,9 @@ func (d *figDraw) envelopes(ep *envPlan) error {
 	case OrthSymmetric:
 		note = ", before orthogonalisation"
 	}
+	if a.Envelope == "log-power" {
+		note += ", amplitude (r uses log power)"
+	}
 	nb := (to - from) / ep.bin
 	times := make([]float64, nb)
 	va, vb := make([]float64, nb), make([]float64, nb)
