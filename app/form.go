@@ -93,6 +93,7 @@ var analysisFields = []field{
 	{Key: "targetFreq.1", Kind: kNum, Label: "Second band high (Hz)", Types: envelopeTypes},
 	{Key: "leakageCorrection", Kind: kOrth, Label: "Leakage correction", Choices: []string{"", "pairwise", "symmetric"}, Types: envelopeTypes},
 	{Key: "segment", Kind: kNum, Label: "Segment length (s)", Types: envelopeTypes, Hint: "optional: r over time"},
+	{Key: "envelope", Kind: kChoice, Label: "Envelope", Choices: []string{"amplitude", "log-power"}, Types: envelopeTypes, Hint: "amplitude, or log power"},
 	{Key: "envelopeRate", Kind: kNum, Label: "Envelope rate (Hz)", Types: envelopeTypes},
 	{Key: "trials", Kind: kChoice, Label: "Trials", Choices: []string{"average", "concatenate"}, Types: envelopeTypes},
 	{Key: "surrogates", Kind: kNum, Label: "Surrogates", Types: envelopeTypes},

@@ -56,6 +56,10 @@ type envPlan struct {
 	como    bool
 	freqs   []float64
 	discard float64 // s discarded at the edges of each trial or of the recording
+	kind    connect.EnvKind
+	storeZ  bool     // units also return the band signals (orthogonalised surrogates)
+	uspans  [][2]int // span of every unit, in unit order
+	segLen  int      // samples per segment of the time course (0: none)
 }
 
 // term is one pair of series to correlate: series indices into the unit's
@@ -108,6 +112,9 @@ func (p *Plan) planEnvelope(path string, a *Analysis) (finisher, error) {
 	if !ep.como && len(ep.chans) < 2 && a.TargetFreq == nil {
 		return nil, ferr(path+".channels", "needs at least two channels (or a targetFreq band for one channel)")
 	}
+	if a.Orthogonalize == OrthSymmetric && a.Segment > 0 {
+		return nil, ferr(path+".segment", "is not available with symmetric orthogonalisation, whose weights need the whole recording")
+	}
 	if a.Orthogonalize == OrthSymmetric && len(ep.chans) < 2 {
 		return nil, ferr(path+".leakageCorrection", "symmetric orthogonalisation needs at least two channels")
 	}
@@ -137,7 +144,15 @@ func (p *Plan) planEnvelope(path string, a *Analysis) (finisher, error) {
 			}
 		}
 	}
-	half := max(p.bank.MaxHalf(ep.fa), p.bank.MaxHalf(ep.fb))
+	// The margin is the widest wavelet of the band(s) analysed (MaxHalf(nil)
+	// would be the whole grid's).
+	half := p.bank.MaxHalf(ep.fa)
+	if ep.fb != nil {
+		half = max(half, p.bank.MaxHalf(ep.fb))
+	}
+	if a.Envelope == "log-power" {
+		ep.kind = connect.LogPower
+	}
 	ep.src.margin = half
 	ep.discard = 2 * float64(half) / ep.rate
 	ep.bin = 1
@@ -175,6 +190,7 @@ func (p *Plan) planEnvelope(path string, a *Analysis) (finisher, error) {
 		step := chunkLen / ep.bin * ep.bin
 		if a.Segment > 0 {
 			step = int(math.Round(a.Segment*ep.rate)) / ep.bin * ep.bin
+			ep.segLen = step
 			if step < 3*ep.bin {
 				return nil, ferr(path+".segment", "%g s is too short", a.Segment)
 			}
@@ -186,10 +202,7 @@ func (p *Plan) planEnvelope(path string, a *Analysis) (finisher, error) {
 			step = hi - lo // one unit: the weights need the whole recording
 		}
 		for s := lo; s+ep.bin <= hi; s += step {
-			e := min(s+step, hi)
-			if a.Segment > 0 && e-s < step {
-				break // a last, partial segment would not be comparable
-			}
+			e := min(s+step, hi) // a last, partial segment counts for the recording, not for the time course
 			ep.spans = append(ep.spans, [2]int{s, e})
 			ep.units = append(ep.units, p.envUnit(ep, len(ep.spans)-1, [2]int{s, e}))
 			total += (e - s) / ep.bin
@@ -198,11 +211,19 @@ func (p *Plan) planEnvelope(path string, a *Analysis) (finisher, error) {
 	spearman := a.Method == "spearman"
 	ep.store = spearman || a.Surrogates > 0 || !ep.epoched || a.Trials == "concatenate"
 	ep.storeOr = a.Orthogonalize == OrthPairwise && (spearman || a.Surrogates > 0)
+	ep.storeZ = a.Orthogonalize != OrthNone && a.Surrogates > 0
 	if ep.como {
-		ep.store = false
+		ep.store, ep.storeZ = false, false
 	}
 	if ep.store {
-		if v := ep.storedSeries() * total; v > maxStoredValues {
+		v := ep.storedSeries() * total
+		if ep.storeZ {
+			v += 2 * len(ep.chans) * total * ep.bin // the band signals at the full rate
+		}
+		if ep.storeZ && 2*len(ep.chans)*total*ep.bin > maxStoredValues/2 {
+			return nil, ferr(path+".surrogates", "orthogonalised surrogates keep the band signals of %d channels at the full rate, %d MB; analyse fewer channels at a time, or use no surrogates", len(ep.chans), 16*len(ep.chans)*total*ep.bin>>20)
+		}
+		if v > maxStoredValues {
 			return nil, ferr(path+".envelopeRate", "keeping %d envelope series of %d samples needs %d MB; set envelopeRate (for example 20 Hz) to bin the envelopes", ep.storedSeries(), total, v*8>>20)
 		}
 	}
@@ -275,6 +296,7 @@ func (ep *envPlan) storedSeries() int {
 
 func (p *Plan) envUnit(ep *envPlan, seg int, span [2]int) int {
 	id := len(p.units)
+	ep.uspans = append(ep.uspans, span)
 	cost := float64(len(ep.chans)*(span[1]-span[0])) * float64(len(ep.fa)+len(ep.fb)+len(ep.terms))
 	p.units = append(p.units, unit{
 		Unit: Unit{ID: id, Kind: ep.a.Type, Channels: ep.names, Cost: cost},
@@ -290,8 +312,6 @@ func (p *Plan) envUnit(ep *envPlan, seg int, span [2]int) int {
 func (ep *envPlan) compute(ctx context.Context, p *Plan, seg int, span [2]int) ([]float64, error) {
 	a := ep.a
 	n := len(ep.chans)
-	m := span[1] - span[0]
-	nb := m / ep.bin
 	var za, zb [][]complex128
 	convs := map[int]*spectral.Convolver{}
 	band := func(ch int, freqs []int) []complex128 {
@@ -325,60 +345,33 @@ func (ep *envPlan) compute(ctx context.Context, p *Plan, seg int, span [2]int) (
 			}
 		}
 	}
+	var raw [][]complex128 // the band signals before a symmetric correction
+	if ep.storeZ {
+		raw = append(raw, za...)
+	}
 	if a.Orthogonalize == OrthSymmetric {
 		if err := ep.symmetric(za); err != nil {
 			return nil, err
 		}
 	}
-	// Binned envelopes.
-	bin := func(dst []float64, f func(k int) float64) []float64 {
-		dst = dst[:0]
-		for b := range nb {
-			s := 0.0
-			for k := b * ep.bin; k < (b+1)*ep.bin; k++ {
-				s += f(k)
-			}
-			dst = append(dst, s/float64(ep.bin))
-		}
-		return dst
-	}
-	abs := func(z []complex128) func(int) float64 {
-		return func(k int) float64 { return math.Hypot(real(z[k]), imag(z[k])) }
-	}
+	// Binned envelopes (connect.Envelope, connect.OrthEnvelope).
 	series := make([][]float64, ep.nSeries+len(ep.chans)*(len(ep.chans)-1))
 	for i, z := range za {
-		series[i] = bin(nil, abs(z))
+		series[i] = connect.Envelope(nil, z, ep.bin, nil, ep.kind)
 	}
 	for i, z := range zb {
-		series[n+i] = bin(nil, abs(z))
+		series[n+i] = connect.Envelope(nil, z, ep.bin, nil, ep.kind)
 	}
 	if a.Orthogonalize == OrthPairwise {
-		// |Y⊥X| = |Im(y·x̄)|/|x| = |Im(y·ū)| with the unit phasor u = x/|x|
-		// (connect.OrthAmp), so each channel's phasors are computed once.
-		inv := 1 / float64(ep.bin)
-		u := make([]complex128, m)
+		// |Y⊥X| = |Im(y·ū)| with the unit phasors u = x/|x|, so each
+		// channel's phasors are computed once.
+		var u []complex128
 		for i := range n {
-			for k, v := range za[i] {
-				u[k] = 0
-				if a := math.Hypot(real(v), imag(v)); a > 0 {
-					u[k] = complex(real(v)/a, imag(v)/a)
-				}
-			}
+			u = connect.UnitPhasors(u, za[i])
 			for j := range n {
-				if i == j {
-					continue
+				if i != j {
+					series[ep.orthSeries(i, j)] = connect.OrthEnvelope(nil, u, za[j], ep.bin, nil, ep.kind)
 				}
-				y := za[j]
-				dst := make([]float64, nb)
-				for b := range nb {
-					sum := 0.0
-					for k := b * ep.bin; k < (b+1)*ep.bin; k++ {
-						// Im(y·ū) = imag(y)·real(u) − real(y)·imag(u)
-						sum += math.Abs(imag(y[k])*real(u[k]) - real(y[k])*imag(u[k]))
-					}
-					dst[b] = sum * inv
-				}
-				series[ep.orthSeries(i, j)] = dst
 			}
 		}
 	}
@@ -396,36 +389,20 @@ func (ep *envPlan) compute(ctx context.Context, p *Plan, seg int, span [2]int) (
 			out = append(out, series[s]...)
 		}
 	}
+	for _, z := range raw {
+		for _, v := range z {
+			out = append(out, real(v), imag(v))
+		}
+	}
 	return out, nil
 }
 
-// symmetric replaces the band signals by their symmetric orthogonalisation.
+// symmetric replaces the band signals by their closest orthogonal set
+// (connect.SymmetricCorrect).
 func (ep *envPlan) symmetric(z [][]complex128) error {
-	n := len(z)
-	gram := make([]float64, n*n)
-	for i := range n {
-		for j := i; j < n; j++ {
-			s := 0.0
-			for k := range z[i] {
-				s += real(z[i][k]) * real(z[j][k])
-			}
-			gram[i*n+j], gram[j*n+i] = s, s
-		}
-	}
-	w, err := connect.SymmetricWeights(gram, n)
+	out, err := connect.SymmetricCorrect(z, nil)
 	if err != nil {
 		return ferr(ep.path+".leakageCorrection", "%v; drop a channel (for example one of an average-referenced set) or use pairwise orthogonalisation", err)
-	}
-	m := len(z[0])
-	out := make([][]complex128, n)
-	for i := range n {
-		out[i] = make([]complex128, m)
-		for j := range n {
-			wij := complex(w[i*n+j], 0)
-			for k, v := range z[j] {
-				out[i][k] += wij * v
-			}
-		}
 	}
 	copy(z, out)
 	return nil
@@ -433,9 +410,21 @@ func (ep *envPlan) symmetric(z [][]complex128) error {
 
 // unitParts splits a unit's values into the co-moments of each term and the
 // stored series.
-func (ep *envPlan) unitParts(v []float64) (mo []connect.Moments, series [][]float64) {
+func (ep *envPlan) unitParts(u int, v []float64) (mo []connect.Moments, series [][]float64, raw [][]complex128) {
 	for t := range ep.terms {
 		mo = append(mo, connect.MomentsFrom(v[6*t:]))
+	}
+	if ep.storeZ {
+		m := ep.uspans[u][1] - ep.uspans[u][0]
+		z := v[len(v)-2*m*len(ep.chans):]
+		v = v[:len(v)-len(z)]
+		for c := range ep.chans {
+			zc := make([]complex128, m)
+			for k := range zc {
+				zc[k] = complex(z[2*(c*m+k)], z[2*(c*m+k)+1])
+			}
+			raw = append(raw, zc)
+		}
 	}
 	if ep.store {
 		rest := v[6*len(ep.terms):]
@@ -445,21 +434,32 @@ func (ep *envPlan) unitParts(v []float64) (mo []connect.Moments, series [][]floa
 			series = append(series, rest[s*l:(s+1)*l])
 		}
 	}
-	return mo, series
+	return mo, series, raw
 }
 
 func (ep *envPlan) finish(ctx context.Context, p *Plan, res []UnitResult, out *report.Results) error {
 	a := ep.a
 	nu := len(ep.units)
 	mos := make([][]connect.Moments, nu)
-	var stored [][]float64 // per series, concatenated over units
-	var unitLen []int      // stored samples per unit
+	var stored [][]float64   // per series, concatenated over units
+	var unitLen []int        // stored samples per unit
+	var bands [][]complex128 // band signals per channel, concatenated over units
+	var rawLen []int         // band-signal samples per unit
 	if ep.store {
 		stored = make([][]float64, ep.storedSeries())
 	}
+	if ep.storeZ {
+		bands = make([][]complex128, len(ep.chans))
+	}
 	for u, id := range ep.units {
-		mo, series := ep.unitParts(res[id].Values)
+		mo, series, raw := ep.unitParts(u, res[id].Values)
 		mos[u] = mo
+		if ep.storeZ {
+			rawLen = append(rawLen, len(raw[0]))
+			for c := range raw {
+				bands[c] = append(bands[c], raw[c]...)
+			}
+		}
 		if ep.store {
 			unitLen = append(unitLen, len(series[0]))
 			for s := range series {
@@ -514,7 +514,7 @@ func (ep *envPlan) finish(ctx context.Context, p *Plan, res []UnitResult, out *r
 				note = joinNote(note, fmt.Sprintf("%d of %d trials had an undefined r and were left out", nu-len(zs), nu))
 			}
 			if a.Surrogates > 0 && !math.IsNaN(r) {
-				psurr = ep.trialShuffle(pr, stored, unitLen, r, rng, spearman)
+				psurr = ep.trialShuffle(pr, stored, unitLen, r, rng, spearman, bands, rawLen)
 			}
 		default:
 			if spearman {
@@ -538,9 +538,9 @@ func (ep *envPlan) finish(ctx context.Context, p *Plan, res []UnitResult, out *r
 				pmethod = "effective-n"
 				if a.Surrogates > 0 {
 					if ep.epoched {
-						psurr = ep.trialShuffle(pr, stored, unitLen, r, rng, spearman)
+						psurr = ep.trialShuffle(pr, stored, unitLen, r, rng, spearman, bands, rawLen)
 					} else {
-						psurr = ep.timeShift(pr, stored, r, rng, spearman)
+						psurr = ep.timeShift(pr, stored, r, rng, spearman, bands, rawLen)
 					}
 				}
 			}
@@ -554,8 +554,11 @@ func (ep *envPlan) finish(ctx context.Context, p *Plan, res []UnitResult, out *r
 				rmat[pr.j][pr.i] = r
 			}
 		}
-		if a.Orthogonalize != OrthNone {
-			note = joinNote(note, "orthogonalised: zero-lag coupling, genuine or leaked, is removed")
+		switch a.Orthogonalize {
+		case OrthPairwise:
+			note = joinNote(note, "pairwise orthogonalised (Hipp et al. 2012): the part of each signal at zero phase lag to the other is removed, so genuine zero-lag coupling is removed as well as leakage")
+		case OrthSymmetric:
+			note = joinNote(note, "closest orthogonal set (Colclough et al. 2015): every zero-lag correlation among the listed channels' band signals is removed, genuine zero-lag coupling as well as leakage")
 		}
 		row.Extra = []report.Field{
 			{Name: "band_low_hz", Value: report.Num(p.freqs[ep.fa[0]])},
@@ -563,12 +566,14 @@ func (ep *envPlan) finish(ctx context.Context, p *Plan, res []UnitResult, out *r
 			{Name: "target_band_low_hz", Value: ep.fbNum(p, 0)},
 			{Name: "target_band_high_hz", Value: ep.fbNum(p, len(ep.fb)-1)},
 			{Name: "leakage_correction", Value: orthName(a.Orthogonalize)},
+			{Name: "envelope", Value: envName(a.Envelope)},
 			{Name: "over", Value: ep.overName()},
 			{Name: "envelope_rate", Value: report.Num(ep.rate / float64(ep.bin))},
 			{Name: "edge_discard_s", Value: report.Num(ep.discard)},
 			{Name: "n_eff", Value: report.Num(neff)},
 			{Name: "p_method", Value: pmethod},
 			{Name: "p_surr", Value: report.Num(psurr)},
+			{Name: "p_surr_se", Value: report.Num(stats.PermSE(psurr, a.Surrogates))},
 			{Name: "surrogates", Value: strconv.Itoa(a.Surrogates)},
 			{Name: "q", Value: ""},
 			{Name: "correction", Value: a.Correction},
@@ -610,6 +615,14 @@ func (ep *envPlan) overName() string {
 		return "epochs-concatenated"
 	}
 	return "epochs-averaged"
+}
+
+// envName is the envelope column: "amplitude" or "log-power".
+func envName(e string) string {
+	if e == "" {
+		return "amplitude"
+	}
+	return e
 }
 
 func orthName(o Orth) string {
@@ -668,7 +681,10 @@ func corr(x, y []float64, spearman bool) float64 {
 // never less than five times the lag at which either envelope's
 // autocorrelation falls below 1/e), breaking their alignment but not their
 // own temporal structure. p = (b + 1)/(S + 1).
-func (ep *envPlan) timeShift(pr pairRow, stored [][]float64, r float64, rng interface{ IntN(int) int }, spearman bool) float64 {
+func (ep *envPlan) timeShift(pr pairRow, stored [][]float64, r float64, rng interface{ IntN(int) int }, spearman bool, zs [][]complex128, rawLen []int) float64 {
+	if ep.storeZ {
+		return ep.orthSurrogate(pr, stored, nil, r, rng, spearman, zs, rawLen)
+	}
 	n := len(stored[0])
 	minLag := n / 10
 	for _, t := range pr.terms {
@@ -721,7 +737,10 @@ func decorrLag(x []float64) int {
 
 // trialShuffle returns the surrogate p for epoched input: the trials of the
 // second series are paired with randomly permuted trials of the first.
-func (ep *envPlan) trialShuffle(pr pairRow, stored [][]float64, unitLen []int, r float64, rng interface{ IntN(int) int }, spearman bool) float64 {
+func (ep *envPlan) trialShuffle(pr pairRow, stored [][]float64, unitLen []int, r float64, rng interface{ IntN(int) int }, spearman bool, zs [][]complex128, rawLen []int) float64 {
+	if ep.storeZ {
+		return ep.orthSurrogate(pr, stored, unitLen, r, rng, spearman, zs, rawLen)
+	}
 	nt := len(unitLen)
 	off := make([]int, nt+1)
 	for t, l := range unitLen {
@@ -768,17 +787,103 @@ func (ep *envPlan) trialShuffle(pr pairRow, stored [][]float64, unitLen []int, r
 	return stats.PermP(b, ep.a.Surrogates)
 }
 
-// timeCourse is r per segment for every row.
+// orthSurrogate is the surrogate p of an orthogonalised row: channel j's
+// band signal is shifted circularly (recordings, a lag in whole envelope
+// bins drawn as in timeShift, from the envelopes of i and j) or its trials
+// are permuted (epochs, unitLen non-nil), and only then orthogonalised
+// against the unshifted channel i, both ways, or re-orthogonalised with
+// the whole set (connect.PairTerms), and the terms correlated as the
+// observed r was.
+func (ep *envPlan) orthSurrogate(pr pairRow, stored [][]float64, unitLen []int, r float64, rng interface{ IntN(int) int }, spearman bool, zs [][]complex128, rawLen []int) float64 {
+	corr := connect.PairwiseOrth
+	if ep.a.Orthogonalize == OrthSymmetric {
+		corr = connect.SymmetricOrth
+	}
+	nb := len(stored[0])
+	minLag := 0
+	if unitLen == nil {
+		minLag = max(nb/10, 5*decorrLag(stored[pr.i]), 5*decorrLag(stored[pr.j]))
+		if 2*minLag >= nb {
+			return math.NaN()
+		}
+	}
+	perm := make([]int, len(rawLen))
+	for i := range perm {
+		perm[i] = i
+	}
+	pt := connect.NewPairTermer(zs, pr.i, pr.j, corr, ep.bin, rawLen, ep.kind)
+	b := 0
+	for range ep.a.Surrogates {
+		var terms [][2][]float64
+		var err error
+		if unitLen != nil {
+			for i := len(perm) - 1; i > 0; i-- {
+				k := rng.IntN(i + 1)
+				perm[i], perm[k] = perm[k], perm[i]
+			}
+			terms, err = pt.Permuted(perm, rawLen[0])
+		} else {
+			lag := minLag + rng.IntN(nb-2*minLag+1)
+			terms, err = pt.Shifted(lag * ep.bin % len(zs[pr.j]))
+		}
+		if err != nil {
+			return math.NaN()
+		}
+		rsur := ep.surrR(terms, unitLen, spearman)
+		if !math.IsNaN(rsur) && math.Abs(rsur) >= math.Abs(r)-1e-12 {
+			b++
+		}
+	}
+	return stats.PermP(b, ep.a.Surrogates)
+}
+
+// surrR is a surrogate's r from its terms, made as the observed r is: the
+// mean of the terms' r over all samples, or on averaged epochs that mean
+// per trial, then the mean of Fisher z across trials.
+func (ep *envPlan) surrR(terms [][2][]float64, unitLen []int, spearman bool) float64 {
+	rs := make([]float64, len(terms))
+	if unitLen == nil || ep.a.Trials == "concatenate" {
+		for t, tm := range terms {
+			rs[t] = corr(tm[0], tm[1], spearman)
+		}
+		return meanR(rs)
+	}
+	var zs []float64
+	off := 0
+	for _, l := range unitLen {
+		for t, tm := range terms {
+			rs[t] = corr(tm[0][off:off+l], tm[1][off:off+l], spearman)
+		}
+		if rk := meanR(rs); !math.IsNaN(rk) {
+			zs = append(zs, math.Atanh(math.Max(-1+1e-15, math.Min(1-1e-15, rk))))
+		}
+		off += l
+	}
+	if len(zs) == 0 {
+		return math.NaN()
+	}
+	return math.Tanh(mean(zs))
+}
+
+// timeCourse is r per segment for every row. A last, partial segment
+// counts for the recording's r but is left out here, where it would not be
+// comparable with the full ones.
 func (ep *envPlan) timeCourse(mos [][]connect.Moments) report.Map {
 	m := report.Map{Name: ep.a.ID + "_timecourse", RowName: "pair", ColName: "segment_start_s"}
+	full := 0
 	for _, sp := range ep.spans {
-		m.ColLabels = append(m.ColLabels, report.Num(roundTime(float64(sp[0])/ep.rate)))
+		if sp[1]-sp[0] == ep.segLen {
+			m.ColLabels = append(m.ColLabels, report.Num(roundTime(float64(sp[0])/ep.rate)))
+			full++
+		}
 	}
 	for _, pr := range ep.rows {
 		m.RowLabels = append(m.RowLabels, pr.seed+"-"+pr.target)
-		vals := make([]float64, len(ep.spans))
-		for u := range ep.spans {
-			vals[u] = meanR(ep.termRs(pr, func(t int) float64 { return mos[u][t].R() }))
+		vals := make([]float64, 0, full)
+		for u, sp := range ep.spans {
+			if sp[1]-sp[0] == ep.segLen {
+				vals = append(vals, meanR(ep.termRs(pr, func(t int) float64 { return mos[u][t].R() })))
+			}
 		}
 		m.Values = append(m.Values, vals)
 	}
@@ -830,6 +935,7 @@ func (ep *envPlan) comoRows(vals [][]float64, best float64, bi, bj, n int, out *
 		{Name: "band_low_hz", Value: peak(ep.fa, bi)}, {Name: "band_high_hz", Value: peak(ep.fa, bi)},
 		{Name: "target_band_low_hz", Value: peak(ep.fb, bj)}, {Name: "target_band_high_hz", Value: peak(ep.fb, bj)},
 		{Name: "over", Value: ep.overName()},
+		{Name: "envelope", Value: envName(a.Envelope)},
 		{Name: "envelope_rate", Value: report.Num(ep.rate / float64(ep.bin))},
 		{Name: "edge_discard_s", Value: report.Num(ep.discard)},
 		{Name: "note", Value: fmt.Sprintf("peak |r| of the %d×%d map in maps/%s_comodulogram.csv; p is not given for a peak picked from a map; neighbouring wavelets overlap in frequency, which inflates r near the diagonal", len(ep.fa), len(ep.fb), a.ID)},

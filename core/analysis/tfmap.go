@@ -548,6 +548,8 @@ func (tp *tfPlan) clusterRows(m int, s *tfStats, cl *tfClusters) []report.Row {
 		}
 		row.Extra = tp.fields([2]float64{tp.colS[c.c0], tp.colS[c.c1]}, [2]float64{tp.rowHz[c.r0], tp.rowHz[c.r1]},
 			strconv.Itoa(k), sign, report.Num(cl.sums[k-1]), strconv.Itoa(c.size), tc, "cluster", "", clusterNote)
+		// The cluster p is a permutation p: its Monte-Carlo standard error.
+		row.Extra = append(row.Extra, report.Field{Name: "p_se", Value: report.Num(stats.PermSE(row.P, tp.a.Permutations))})
 		rows = append(rows, row)
 	}
 	if rows == nil {

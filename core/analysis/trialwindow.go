@@ -227,6 +227,7 @@ func correlate(a *Analysis, x, y []float64, covs [][]float64, spearman, ranked b
 	row.Extra = []report.Field{
 		{Name: "df", Value: strconv.Itoa(df)},
 		{Name: "p_perm", Value: report.Num(pperm)},
+		{Name: "p_perm_se", Value: report.Num(stats.PermSE(pperm, a.Permutations))},
 		{Name: "p_exact", Value: report.Num(pexact)},
 		{Name: "p_method", Value: pmethod},
 		{Name: "permutations", Value: strconv.Itoa(a.Permutations)},
@@ -391,6 +392,7 @@ func (tw *twPlan) compareConditions(a *Analysis, x, y []float64, spearman bool) 
 		{Name: "r_diff", Value: report.Num(rs[0] - rs[1])},
 		{Name: "p_method", Value: "fisher-z"},
 		{Name: "p_perm", Value: report.Num(pperm)},
+		{Name: "p_perm_se", Value: report.Num(stats.PermSE(pperm, a.Permutations))},
 		{Name: "permutations", Value: strconv.Itoa(a.Permutations)},
 		{Name: "q", Value: ""},
 		{Name: "correction", Value: a.Correction},

@@ -83,6 +83,9 @@ func (d *figDraw) envelopes(ev analysis.EnvelopeView) error {
 	if tr.Before {
 		note = ", before orthogonalisation"
 	}
+	if a.Envelope == "log-power" {
+		note += ", amplitude (r uses log power)"
+	}
 	if ev.CrossFrequency() {
 		nameA += ", " + figBand(ev.SeedFreqs())
 		nameB += ", " + figBand(ev.TargetFreqs())

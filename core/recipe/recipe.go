@@ -90,6 +90,7 @@ type Analysis struct {
 	EnvelopeRate  float64     `json:"envelopeRate,omitempty"` // Hz; low-pass and downsample envelopes
 	Trials        string      `json:"trials,omitempty"`       // epoched input: "average" (default) or "concatenate"
 	Surrogates    int         `json:"surrogates,omitempty"`   // time-shift (or trial-shuffle) surrogates for p
+	Envelope      string      `json:"envelope,omitempty"`     // "amplitude" (the default, also "") or "log-power"
 	Over          string      `json:"over,omitempty"`         // "recording" or "epochs"; default: the recording when there is one
 
 	// inference
@@ -342,7 +343,7 @@ func parseAnalysis(path string, v any) (Analysis, error) {
 		}
 	case TypeEnvelope, TypeComodulogram:
 		a.Method = "pearson"
-		keys = append(keys, "channels", "freq", "targetFreq", "leakageCorrection", "segment", "envelopeRate", "trials", "surrogates", "over")
+		keys = append(keys, "channels", "freq", "targetFreq", "leakageCorrection", "segment", "envelopeRate", "trials", "surrogates", "over", "envelope")
 	case "":
 		return a, ferr(path+".type", "is required: one of %s", typeList)
 	default:
@@ -507,6 +508,12 @@ func parseAnalysis(path string, v any) (Analysis, error) {
 		}
 		if err := o.integer("surrogates", &a.Surrogates, 0, 100000); err != nil {
 			return a, err
+		}
+		if err := o.str("envelope", &a.Envelope); err != nil {
+			return a, err
+		}
+		if a.Envelope != "" && a.Envelope != "amplitude" && a.Envelope != "log-power" {
+			return a, ferr(path+".envelope", "%q is not a kind; use \"amplitude\" or \"log-power\"", a.Envelope)
 		}
 		if err := o.str("over", &a.Over); err != nil {
 			return a, err

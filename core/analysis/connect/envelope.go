@@ -94,26 +94,104 @@ func MomentsFrom(v []float64) Moments {
 	return Moments{v[0], v[1], v[2], v[3], v[4], v[5]}
 }
 
-// ErrRankDeficient is returned by SymmetricWeights when the channels are
+// ErrRankDeficient is returned by ClosestOrthogonal when the channels are
 // linearly dependent (for example after an average reference over exactly
 // these channels), so no orthogonal set is close to them.
 var ErrRankDeficient = errors.New("the channels' band signals are linearly dependent (rank-deficient)")
 
-// SymmetricWeights returns W = G^(−1/2) for the n×n Gram matrix G = Z·Zᵀ of
-// the channels' real band-limited signals (row-major, length n·n). W·Z is
-// U·Vᵀ from the SVD Z = U·S·Vᵀ: the orthonormal set of rows closest to Z in
-// the least-squares sense (the symmetric multivariate orthogonalisation of
-// Colclough et al. 2015, NeuroImage 117:439). Each row of W·Z is then scaled
-// back to its original norm, which does not change any correlation.
-func SymmetricWeights(gram []float64, n int) ([]float64, error) {
+// MaxOrthIter bounds the iterations of ClosestOrthogonal.
+const MaxOrthIter = 5000
+
+// OrthTol is ClosestOrthogonal's stopping tolerance: it stops when no
+// diagonal weight changed by more than OrthTol times the largest one.
+const OrthTol = 1e-10
+
+// ErrNoConvergence is returned by ClosestOrthogonal when the weights still
+// change after MaxOrthIter iterations.
+var ErrNoConvergence = errors.New("the closest orthogonal set did not converge")
+
+// ClosestOrthogonal returns the n×n weights W (row-major) that map the
+// channels' real band-limited signals Z (n × T, given only through their
+// Gram matrix G = Z·Zᵀ, row-major) to their closest orthogonal set,
+// W·Z = D·O: the minimiser of ‖Z − D·O‖_F over a diagonal D and an O with
+// orthonormal rows (O·Oᵀ = I). This is the symmetric multivariate leakage
+// correction of Colclough et al. 2015 (NeuroImage 117:439), found as the
+// paper describes by alternating the two exact partial minimisations:
+//
+//	O = U·Vᵀ from the SVD D·Z = U·S·Vᵀ (the closest orthonormal set to
+//	  D·Z), which is (D·G·D)^(−1/2)·D·Z;
+//	d_i = ⟨Z_i, O_i⟩ = (G·D·(D·G·D)^(−1/2))_ii.
+//
+// Both steps only need G. It starts from d_i = √G_ii (the row norms) and
+// stops when max_i |d_i − d_i(previous)| ≤ OrthTol·max_i d_i, after at most
+// MaxOrthIter iterations (ErrNoConvergence). Then W = D·(D_prev·G·D_prev)^(−1/2)·D_prev,
+// with D the last weights and D_prev the ones O was made from. The output
+// rows are mutually orthogonal, so every zero-lag correlation among the
+// channels is removed, the genuine kind as well as leakage. It returns the
+// number of iterations too.
+func ClosestOrthogonal(gram []float64, n int) (w []float64, iters int, err error) {
+	if len(gram) != n*n {
+		panic("connect: Gram matrix size mismatch")
+	}
 	for _, v := range gram {
 		if math.IsNaN(v) || math.IsInf(v, 0) {
-			return nil, errors.New("the band signals contain non-finite values")
+			return nil, 0, errors.New("the band signals contain non-finite values")
 		}
 	}
-	sym := mat.NewSymDense(n, append([]float64(nil), gram...))
+	d := make([]float64, n)
+	for i := range n {
+		d[i] = math.Sqrt(gram[i*n+i])
+		if !(d[i] > 0) {
+			return nil, 0, ErrRankDeficient
+		}
+	}
+	next := make([]float64, n)
+	for iters = 1; iters <= MaxOrthIter; iters++ {
+		isq, err := invSqrtDGD(gram, d, n)
+		if err != nil {
+			return nil, iters, err
+		}
+		// next_i = Σ_k G_ik d_k isq_ki
+		change, top := 0.0, 0.0
+		for i := range n {
+			s := 0.0
+			for k := range n {
+				s += gram[i*n+k] * d[k] * isq[k*n+i]
+			}
+			next[i] = s
+			change = math.Max(change, math.Abs(s-d[i]))
+			top = math.Max(top, math.Abs(s))
+		}
+		if change <= OrthTol*top {
+			w = make([]float64, n*n)
+			for i := range n {
+				for j := range n {
+					w[i*n+j] = next[i] * isq[i*n+j] * d[j]
+				}
+			}
+			return w, iters, nil
+		}
+		for i := range n {
+			if !(next[i] > 0) {
+				return nil, iters, ErrRankDeficient
+			}
+		}
+		d, next = next, d
+	}
+	return nil, MaxOrthIter, ErrNoConvergence
+}
+
+// invSqrtDGD returns (D·G·D)^(−1/2) for D = diag(d), or ErrRankDeficient
+// when an eigenvalue is below 1e−10 times the largest.
+func invSqrtDGD(gram, d []float64, n int) ([]float64, error) {
+	a := make([]float64, n*n)
+	for i := range n {
+		for j := range n {
+			a[i*n+j] = d[i] * gram[i*n+j] * d[j]
+		}
+	}
 	var eig mat.EigenSym
-	if !eig.Factorize(sym, true) {
+	if !eig.Factorize(mat.NewSymDense(n, a), true) {
 		return nil, errors.New("eigen-decomposition of the Gram matrix failed")
 	}
 	vals := eig.Values(nil)
@@ -128,23 +206,65 @@ func SymmetricWeights(gram []float64, n int) ([]float64, error) {
 	}
 	var vec mat.Dense
 	eig.VectorsTo(&vec)
-	w := make([]float64, n*n)
+	out := make([]float64, n*n)
 	for i := range n {
 		for j := range n {
 			s := 0.0
 			for k := range n {
 				s += vec.At(i, k) * vec.At(j, k) / math.Sqrt(vals[k])
 			}
-			w[i*n+j] = s
+			out[i*n+j] = s
 		}
 	}
-	// Scale each output row back to the norm of its input row: row i of W·Z
-	// has unit norm, the input row has norm √G_ii.
+	return out, nil
+}
+
+// RealGram returns G = Re(Z)·Re(Z)ᵀ (row-major, n × n) of the channels'
+// complex band signals z (equal lengths): the Gram matrix of the real
+// band-limited signals.
+func RealGram(z [][]complex128) []float64 {
+	n := len(z)
+	g := make([]float64, n*n)
 	for i := range n {
-		s := math.Sqrt(gram[i*n+i])
-		for j := range n {
-			w[i*n+j] *= s
+		for j := i; j < n; j++ {
+			s := 0.0
+			for k, v := range z[i] {
+				s += real(v) * real(z[j][k])
+			}
+			g[i*n+j], g[j*n+i] = s, s
 		}
 	}
-	return w, nil
+	return g
+}
+
+// SymmetricCorrect returns rows of the closest orthogonal set of the
+// channels' band signals z (ClosestOrthogonal on their real Gram matrix,
+// applied to the complex signals; a real linear map commutes with taking
+// the analytic signal): out[k] = Σ_j W[rows[k]][j]·z[j]. rows nil means
+// every row.
+func SymmetricCorrect(z [][]complex128, rows []int) ([][]complex128, error) {
+	n := len(z)
+	if rows == nil {
+		rows = make([]int, n)
+		for i := range rows {
+			rows[i] = i
+		}
+	}
+	w, _, err := ClosestOrthogonal(RealGram(z), n)
+	if err != nil {
+		return nil, err
+	}
+	m := len(z[0])
+	out := make([][]complex128, len(rows))
+	for k, i := range rows {
+		o := make([]complex128, m)
+		for j := range n {
+			wij := w[i*n+j]
+			for t, v := range z[j] {
+				o[t] += complex(wij*real(v), wij*imag(v))
+			}
+		}
+		out[k] = o
+	}
+	return out, nil
 }

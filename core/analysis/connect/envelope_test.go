@@ -272,7 +272,7 @@ func envMixed(rng *rand.Rand, n, T int) *mat.Dense {
 func envOrth(t *testing.T, z *mat.Dense) *mat.Dense {
 	t.Helper()
 	n, _ := z.Dims()
-	w, err := SymmetricWeights(envGram(z), n)
+	w, _, err := ClosestOrthogonal(envGram(z), n)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -281,53 +281,7 @@ func envOrth(t *testing.T, z *mat.Dense) *mat.Dense {
 	return &o
 }
 
-// SymmetricWeights against gonum's SVD: W·Z equals U·Vᵀ of the thin SVD
-// Z = U·S·Vᵀ with each row scaled back to its input norm (Colclough et al.
-// 2015, NeuroImage 117:439); its rows are orthogonal.
-func TestSymmetricWeights(t *testing.T) {
-	rng := rand.New(rand.NewPCG(16, 1))
-	for _, c := range []struct{ n, T int }{{2, 50}, {3, 200}, {6, 400}, {4, 5}} {
-		t.Run(fmt.Sprintf("%dx%d", c.n, c.T), func(t *testing.T) {
-			z := envMixed(rng, c.n, c.T)
-			o := envOrth(t, z)
-			norms := make([]float64, c.n)
-			for i := range c.n {
-				norms[i] = mat.Norm(z.RowView(i), 2)
-			}
-			// Gram of the output: diagonal with the input norms squared.
-			var g mat.Dense
-			g.Mul(o, o.T())
-			for i := range c.n {
-				if !closeRel(math.Sqrt(g.At(i, i)), norms[i], 1e-9) {
-					t.Errorf("row %d norm %v, input norm %v", i, math.Sqrt(g.At(i, i)), norms[i])
-				}
-				for j := range c.n {
-					if i != j && math.Abs(g.At(i, j)) > 1e-9*norms[i]*norms[j] {
-						t.Errorf("rows %d,%d not orthogonal: %v", i, j, g.At(i, j))
-					}
-				}
-			}
-			var svd mat.SVD
-			if !svd.Factorize(z, mat.SVDThin) {
-				t.Fatal("SVD failed")
-			}
-			var u, v, uv mat.Dense
-			svd.UTo(&u)
-			svd.VTo(&v)
-			uv.Mul(&u, v.T())
-			for i := range c.n {
-				for j := range c.T {
-					want := uv.At(i, j) * norms[i]
-					if math.Abs(o.At(i, j)-want) > 1e-9*norms[i] {
-						t.Fatalf("(W·Z)[%d,%d] = %v, U·Vᵀ scaled %v", i, j, o.At(i, j), want)
-					}
-				}
-			}
-		})
-	}
-}
-
-func TestSymmetricWeightsRankDeficient(t *testing.T) {
+func TestClosestOrthogonalRankDeficient(t *testing.T) {
 	rng := rand.New(rand.NewPCG(17, 1))
 	sum := envMixed(rng, 4, 300)
 	for j := range 300 {
@@ -352,7 +306,7 @@ func TestSymmetricWeightsRankDeficient(t *testing.T) {
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			n, _ := c.z.Dims()
-			w, err := SymmetricWeights(envGram(c.z), n)
+			w, _, err := ClosestOrthogonal(envGram(c.z), n)
 			if !errors.Is(err, ErrRankDeficient) {
 				t.Errorf("err = %v (weights %v), want ErrRankDeficient", err, w)
 			}
@@ -362,7 +316,7 @@ func TestSymmetricWeightsRankDeficient(t *testing.T) {
 
 // Symmetric orthogonalisation treats every channel alike: permuting the
 // rows of Z permutes the rows of W·Z the same way.
-func TestSymmetricWeightsPermutation(t *testing.T) {
+func TestClosestOrthogonalPermutation(t *testing.T) {
 	rng := rand.New(rand.NewPCG(18, 1))
 	const n, T = 5, 250
 	z := envMixed(rng, n, T)
