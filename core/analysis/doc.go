@@ -9,8 +9,11 @@
 // combining: trialwindow.go (trial-window: window power across trials,
 // correlated seed against target, with covariates, conditions and their
 // tests), tfmap.go (tf-map: the seed window against every target pixel,
-// with the cluster test), envelope.go (envelope and comodulogram: amplitude
-// envelopes over time, plain or orthogonalised, same band or across bands).
+// with the cluster test), envelope.go (envelope: amplitude or log-power
+// envelopes over time, plain or orthogonalised, same band or across bands;
+// its unit computation in envunits.go and its surrogate p-values in
+// envsurrogates.go) and comodulogram.go (the cross-frequency map, planned
+// and computed as envelopes).
 // plan.go holds what they share (the grid, the wavelet bank, window spans,
 // the unit list), trials.go the per-trial covariates and conditions, and
 // views.go what figures read of a finished plan.
