@@ -2,6 +2,7 @@ package recipe
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"math"
 	"runtime"
@@ -92,7 +93,23 @@ func NewPlan(r *Recipe, ds *Dataset) (*Plan, error) {
 	}
 	p.freqs = freqs
 	p.cycles = spectral.Cycles(len(freqs), sp.Cycles[0], sp.Cycles[1])
-	p.bank, err = spectral.NewBank(rate, p.freqs, p.cycles)
+	// No wavelet may be longer than the data: checked before any kernel is
+	// built, so a tiny file claiming an absurd rate allocates nothing.
+	n := 0
+	if ds.Recording != nil {
+		n = ds.Recording.Len()
+	}
+	if ds.Epochs != nil {
+		n = max(n, ds.Epochs.NSamples)
+	}
+	p.bank, err = spectral.NewBankFor(rate, p.freqs, p.cycles, n)
+	if le := (*spectral.LengthError)(nil); errors.As(err, &le) {
+		field := "spectral.cycles"
+		if le.Index == 0 {
+			field = "spectral.low"
+		}
+		return nil, ferr(field, "%v (%s); raise spectral.low or lower spectral.cycles", err, ds.Name)
+	}
 	if err != nil {
 		return nil, ferr("spectral", "%v", err)
 	}
