@@ -145,6 +145,7 @@ var known = map[string]bool{
 // ParseSidecar parses and checks the sidecar b; name is used in errors,
 // which give the line and column of the offending value and the key.
 func ParseSidecar(name string, b []byte) (*Sidecar, error) {
+	b = bytes.TrimPrefix(b, []byte("\uFEFF")) // a UTF-8 byte order mark, as CSV accepts
 	fields, err := topLevel(name, b)
 	if err != nil {
 		return nil, err
@@ -176,6 +177,9 @@ func ParseSidecar(name string, b []byte) (*Sidecar, error) {
 	var err2 error
 	if sc.SampleRate, err2 = number(fields["sampleRate"].raw); err2 != nil || !(sc.SampleRate > 0) {
 		return nil, bad("sampleRate", "must be a positive number of Hz, got %s", short(fields["sampleRate"].raw))
+	}
+	if err := data.CheckRate(sc.SampleRate); err != nil {
+		return nil, bad("sampleRate", "%v", err)
 	}
 	if sc.Start, err2 = number(fields["start"].raw); err2 != nil {
 		return nil, bad("start", "must be a number of seconds, got %s", short(fields["start"].raw))
