@@ -16,6 +16,10 @@ import (
 func checkRegular(path string) error {
 	st, err := os.Stat(path)
 	if err != nil {
+		var pe *fs.PathError
+		if errors.As(err, &pe) {
+			pe.Op = "open" // as os.Open would say
+		}
 		return err
 	}
 	switch m := st.Mode(); {
