@@ -37,8 +37,8 @@ func decodeJSON(b []byte) (any, error) {
 	if len(bytes.TrimSpace(b)) == 0 {
 		return nil, errors.New("empty recipe")
 	}
-	// The syntax of the whole text first: json.Valid-style errors carry the
-	// offset of the offending byte.
+	// The syntax of the whole text first: json.Unmarshal's syntax errors
+	// carry the offset from the start of b, and refuse data after the value.
 	var raw json.RawMessage
 	if err := json.Unmarshal(b, &raw); err != nil {
 		var se *json.SyntaxError
