@@ -192,6 +192,9 @@ func TestInvalid(t *testing.T) {
 		{"id3 too long", []byte("ID3\x03\x00\x00\x00\x00\x10\x00abc"), "mp3: id3 too long: offset 13 (ID3 tag): tag of 2058 bytes runs past the end of the file: file is truncated", format.ErrTruncated},
 		// A frame header followed by junk: go-mp3 fails inside the frame; the
 		// error gives the offset the decoder had read to.
+		// mpeg2-mono.mp3 with bytes overwritten at random (PCG 3, 4): go-mp3
+		// indexes a table out of range; recovered, with the offset reached.
+		{"invalid-decoder-panic.mp3", nil, "mp3: invalid-decoder-panic.mp3: offset 1358: the decoder failed on malformed data before this offset (runtime error: index out of range [38] with length 38): syntax error", format.ErrSyntax},
 		{"decoder failure has an offset", junkFrame(), "mp3: decoder failure has an offset: offset 417: decoding, before this offset: mp3: is_pos was too big: 576", nil},
 		{"id3 not syncsafe", []byte("ID3\x03\x00\x00\x00\x80\x10\x00abc"), "mp3: id3 not syncsafe: offset 6 (ID3 tag size): size bytes 00 80 10 00 are not syncsafe", nil},
 	} {
