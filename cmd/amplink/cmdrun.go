@@ -42,7 +42,7 @@ func cmdRun(stdout, stderr io.Writer, args []string) (err error) {
 	// run in --out: outputs are written to a staging directory beside it
 	// and replace the earlier ones only on success.
 	defer func() {
-		if err != nil {
+		if err != nil && !errors.Is(err, flag.ErrHelp) {
 			if rerr := removeOutputs(scanOut(args, "amplink-out")); rerr != nil {
 				err = fmt.Errorf("%w (and removing the earlier outputs failed: %v)", err, rerr)
 			}

@@ -2,6 +2,8 @@ package main
 
 import (
 	"bytes"
+	"errors"
+	"flag"
 	"os"
 	"path/filepath"
 	"strings"
@@ -90,6 +92,15 @@ func TestRunFailureLeavesNothingStale(t *testing.T) {
 			if _, err := os.Stat(filepath.Join(out, "notes.txt")); err != nil {
 				t.Errorf("a file amplink did not write was removed: %v", err)
 			}
+			// Asking for help is not a failed run: it removes nothing.
+			run(&stdout, &stderr, []string{"run", "--recipe", good, "--out", out, in})
+			if err := run(&stdout, &stderr, []string{"run", "--out", out, "--help"}); !errors.Is(err, flag.ErrHelp) {
+				t.Fatalf("--help: %v", err)
+			}
+			if left := stalePaths(t, out); len(left) < 5 {
+				t.Errorf("--help removed the outputs, leaving %q", left)
+			}
+			removeOutputs(out)
 			// No staging directory is left beside --out.
 			if m, _ := filepath.Glob(filepath.Join(dir, ".out.staging-*")); len(m) > 0 {
 				t.Errorf("staging left: %q", m)
