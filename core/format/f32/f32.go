@@ -50,7 +50,8 @@ type Sidecar struct {
 // Reader decodes f32 epochs. The zero value is ready to use.
 type Reader struct {
 	// MaxBytes refuses binaries larger than this before allocating;
-	// 0 means DefaultMaxBytes.
+	// 0 means data.MaxSampleBytes when that is set,
+	// else DefaultMaxBytes.
 	MaxBytes int64
 }
 
@@ -387,6 +388,9 @@ func (r *Reader) Read(bin format.File, sidecarName string, sc *Sidecar) (*data.E
 				bin.Size, sidecarName, sc.Trials, nc, sc.Samples, need)}
 	}
 	limit := r.MaxBytes
+	if limit <= 0 {
+		limit = data.MaxSampleBytes // the caller's sample budget (amplink run --max-memory, a page worker)
+	}
 	if limit <= 0 {
 		limit = DefaultMaxBytes
 	}

@@ -259,6 +259,16 @@ func TestLimits(t *testing.T) {
 			t.Errorf("got %v", err)
 		}
 	})
+	// The caller's sample budget (amplink run --max-memory) is the limit
+	// when MaxBytes is 0.
+	t.Run("sample budget", func(t *testing.T) {
+		defer func(v int64) { data.MaxSampleBytes = v }(data.MaxSampleBytes)
+		data.MaxSampleBytes = 20
+		_, err := new(Reader).Read(format.Bytes("t.f32", make([]byte, 24)), "t.json", sc)
+		if err == nil || err.Error() != "f32: t.f32: 24 bytes exceed the limit of 20 bytes: unsupported" {
+			t.Errorf("got %v", err)
+		}
+	})
 	t.Run("overflow", func(t *testing.T) {
 		big := &Sidecar{SampleRate: 10, Channels: make([]string, 1<<12), Trials: 1<<31 - 1, Samples: 1<<31 - 1}
 		_, err := new(Reader).Read(format.Bytes("t.f32", nil), "t.json", big)

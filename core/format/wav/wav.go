@@ -64,7 +64,8 @@ type Header struct {
 // Reader decodes WAV files. The zero value is ready to use.
 type Reader struct {
 	// MaxBytes refuses files whose samples would take more than this many
-	// bytes as float32, before allocating; 0 means DefaultMaxBytes.
+	// bytes as float32, before allocating; 0 means data.MaxSampleBytes when that is set,
+	// else DefaultMaxBytes.
 	MaxBytes int64
 }
 
@@ -255,6 +256,9 @@ func (r *Reader) Read(f format.File) (*data.Recording, error) {
 		return nil, err
 	}
 	limit := r.MaxBytes
+	if limit <= 0 {
+		limit = data.MaxSampleBytes // the caller's sample budget (amplink run --max-memory, a page worker)
+	}
 	if limit <= 0 {
 		limit = DefaultMaxBytes
 	}
