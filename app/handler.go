@@ -14,6 +14,11 @@ const CSP = "default-src 'self'; script-src 'self' 'wasm-unsafe-eval'; " +
 	"worker-src 'self'; connect-src 'self'; img-src 'self' data: blob:; " +
 	"style-src 'self'; font-src 'self'; object-src 'none'; base-uri 'self'; form-action 'none'"
 
+// HeaderCSP is the policy the server sends as a header: CSP plus
+// frame-ancestors 'none', which refuses framing (clickjacking); browsers
+// ignore frame-ancestors in a <meta> policy, so the meta carries CSP alone.
+const HeaderCSP = CSP + "; frame-ancestors 'none'"
+
 // Title is the page title.
 const Title = "amplink: power-based connectivity"
 

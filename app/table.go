@@ -8,6 +8,8 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+
+	"amplink/core/report"
 )
 
 // Table is the results table as results.csv has it: the header row and the
@@ -26,6 +28,11 @@ func ParseTable(csvText string) (Table, error) {
 	}
 	if len(recs) == 0 {
 		return Table{}, fmt.Errorf("results.csv: no header row")
+	}
+	for _, rec := range recs {
+		for i, c := range rec {
+			rec[i] = report.UnquoteCell(c) // the table shows the names, not the spreadsheet guard
+		}
 	}
 	return Table{Header: recs[0], Rows: recs[1:]}, nil
 }

@@ -154,7 +154,7 @@ func TestRunErrors(t *testing.T) {
 		{"missing input", []string{"run", "--recipe", good, filepath.Join(dir, "nope.csv")}, "nope.csv"},
 		{"recipe typo", []string{"run", "--recipe", write("typo.json", strings.Replace(fixtureRecipe, `"permutations"`, `"permutation"`, 1)), in}, `typo.json: analyses[0]: unknown key "permutation"`},
 		{"recipe syntax", []string{"run", "--recipe", write("syn.json", "{\n\"analyses\": [}"), in}, "syn.json: line 2, column 14"},
-		{"unknown channel", []string{"run", "--recipe", write("ch.json", strings.Replace(fixtureRecipe, `"channel": "S"`, `"channel": "Cz"`, 1)), in}, `small.csv: analyses[0].seed.channel: no channel "Cz"; channels are: S, T, U`},
+		{"unknown channel", []string{"run", "--recipe", write("ch.json", strings.Replace(fixtureRecipe, `"channel": "S"`, `"channel": "Cz"`, 1)), in}, `small.csv with recipe ` + filepath.Join(dir, "ch.json") + `: analyses[0].seed.channel: no channel "Cz"; channels are: S, T, U`},
 		{"bad data", []string{"run", "--recipe", good, bad}, `bad.csv:3:3: "x" is not a number`},
 		{"unknown command", []string{"frobnicate"}, "unknown command"},
 	}

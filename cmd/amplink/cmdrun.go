@@ -1,16 +1,15 @@
 package main
 
 import (
-	"bytes"
 	"context"
 	"errors"
 	"flag"
 	"fmt"
 	"io"
-	"os"
 	"path/filepath"
 	"runtime/debug"
 
+	"amplink/core/data"
 	"amplink/core/dataset"
 	"amplink/core/figures"
 	"amplink/core/format"
@@ -38,7 +37,20 @@ func parseInterleaved(fs *flag.FlagSet, args []string) ([]string, error) {
 	}
 }
 
-func cmdRun(stdout, stderr io.Writer, args []string) error {
+// defaultMaxMemory is run's default sample budget, the page's per worker.
+const defaultMaxMemory = "1GiB"
+
+func cmdRun(stdout, stderr io.Writer, args []string) (err error) {
+	// Whatever fails, usage errors included, leaves nothing of an earlier
+	// run in --out: outputs are written to a staging directory beside it
+	// and replace the earlier ones only on success.
+	defer func() {
+		if err != nil && !errors.Is(err, flag.ErrHelp) {
+			if rerr := removeOutputs(scanOut(args, "amplink-out")); rerr != nil {
+				err = fmt.Errorf("%w (and removing the earlier outputs failed: %v)", err, rerr)
+			}
+		}
+	}()
 	fs := flag.NewFlagSet("run", flag.ContinueOnError)
 	fs.SetOutput(stderr)
 	recipePath := fs.String("recipe", "", "the analysis recipe (JSON)")
@@ -48,6 +60,7 @@ func cmdRun(stdout, stderr io.Writer, args []string) error {
 	workers := fs.Int("workers", 0, "parallel workers (0: one per core)")
 	groupsPath := fs.String("groups", "", "with several recordings: a CSV recording,group naming two groups to compare")
 	level := fs.Float64("level", 0.95, "confidence level of the group intervals")
+	maxMemory := fs.String("max-memory", defaultMaxMemory, "the most float32 samples one recording or its epochs may hold, e.g. 4GiB")
 	files, err := parseInterleaved(fs, args)
 	if err != nil {
 		return err
@@ -58,23 +71,30 @@ func cmdRun(stdout, stderr io.Writer, args []string) error {
 	if !(*level > 0 && *level < 1) {
 		return fmt.Errorf("run: --level %g must lie between 0 and 1", *level)
 	}
+	budget, err := parseSize(*maxMemory)
+	if err != nil {
+		return fmt.Errorf("run: --max-memory: %v", err)
+	}
 	if len(files) == 0 {
 		return errors.New("run: no input file given")
 	}
+	// The sample budget is checked by the readers and the epoching before
+	// they allocate (data.CheckSamples).
+	defer func(v int64) { data.MaxSampleBytes = v }(data.MaxSampleBytes)
+	data.MaxSampleBytes = budget
 	// The decoded recording is most of the live heap and stays until the
 	// end; collecting at 30 % growth instead of 100 % keeps the peak close to
 	// the samples themselves on long recordings.
 	defer debug.SetGCPercent(debug.SetGCPercent(30))
-	// A failed run leaves no results.csv, not even one from an earlier run.
-	if err := os.Remove(filepath.Join(*outDir, "results.csv")); err != nil && !errors.Is(err, os.ErrNotExist) {
-		return err
-	}
-	rb, err := os.ReadFile(*recipePath)
+	rb, err := readRegular(*recipePath)
 	if err != nil {
 		return err
 	}
 	rcp, err := recipe.Parse(rb)
 	if err != nil {
+		return fmt.Errorf("%s: %w", *recipePath, err)
+	}
+	if err := recipe.CheckBands(rcp); err != nil {
 		return fmt.Errorf("%s: %w", *recipePath, err)
 	}
 	var events *format.File
@@ -101,8 +121,11 @@ func cmdRun(stdout, stderr io.Writer, args []string) error {
 	ctx := context.Background()
 	var all *report.Results
 	for _, path := range files {
-		res, err := runOne(ctx, stderr, rcp, path, events, trials, *trialsPath, *workers, len(files) > 1)
+		res, err := runOne(ctx, stderr, rcp, *recipePath, path, events, trials, *trialsPath, *workers, len(files) > 1)
 		if err != nil {
+			if errors.Is(err, data.ErrTooLarge) {
+				err = fmt.Errorf("%w; --max-memory %s is the budget, raise it to analyse this", err, *maxMemory)
+			}
 			return err
 		}
 		for i := range res.Rows {
@@ -146,7 +169,7 @@ func cmdRun(stdout, stderr io.Writer, args []string) error {
 	return nil
 }
 
-func runOne(ctx context.Context, stderr io.Writer, rcp *recipe.Recipe, path string, events *format.File, trials *csv.Table, trialsName string, workers int, prefix bool) (*report.Results, error) {
+func runOne(ctx context.Context, stderr io.Writer, rcp *recipe.Recipe, recipePath, path string, events *format.File, trials *csv.Table, trialsName string, workers int, prefix bool) (*report.Results, error) {
 	f, osf, err := openFile(path)
 	if err != nil {
 		return nil, err
@@ -165,7 +188,8 @@ func runOne(ctx context.Context, stderr io.Writer, rcp *recipe.Recipe, path stri
 	}
 	p, err := pipeline.NewPlan(rcp, ds)
 	if err != nil {
-		return nil, fmt.Errorf("%s: %w", path, err)
+		// The recipe and the data disagree: name both.
+		return nil, fmt.Errorf("%s with recipe %s: %w", path, recipePath, err)
 	}
 	if workers <= 0 {
 		workers = defaultWorkers()
@@ -193,73 +217,4 @@ func runOne(ctx context.Context, stderr io.Writer, rcp *recipe.Recipe, path stri
 		}
 	}
 	return out, nil
-}
-
-// writeOutputs writes every output into a staging directory beside dir and
-// moves it into place, results.csv last, so that a failure part-way leaves
-// no results.csv.
-func writeOutputs(dir string, res *report.Results) error {
-	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return err
-	}
-	stage, err := os.MkdirTemp(dir, ".staging-")
-	if err != nil {
-		return err
-	}
-	defer os.RemoveAll(stage)
-	write := func(name string, fill func(w io.Writer) error) error {
-		var b bytes.Buffer
-		if err := fill(&b); err != nil {
-			return err
-		}
-		p := filepath.Join(stage, name)
-		if err := os.MkdirAll(filepath.Dir(p), 0o755); err != nil {
-			return err
-		}
-		return os.WriteFile(p, b.Bytes(), 0o644)
-	}
-	if err := write("results.json", func(w io.Writer) error { return report.WriteJSON(w, res) }); err != nil {
-		return err
-	}
-	if err := write("recipe.json", func(w io.Writer) error { _, err := w.Write(res.Recipe); return err }); err != nil {
-		return err
-	}
-	for i := range res.Maps {
-		m := &res.Maps[i]
-		if err := write(filepath.Join("maps", report.SafeName(m.Name, '_')+".csv"), func(w io.Writer) error { return report.WriteMapCSV(w, m) }); err != nil {
-			return err
-		}
-	}
-	for _, f := range res.Figures {
-		if err := write(filepath.Join("figures", report.SafeName(f.Name, '_')+".svg"), func(w io.Writer) error { _, err := io.WriteString(w, f.SVG); return err }); err != nil {
-			return err
-		}
-	}
-	if err := write("results.csv", func(w io.Writer) error { return report.WriteCSV(w, res) }); err != nil {
-		return err
-	}
-	// Move into place: everything but results.csv first.
-	for _, sub := range []string{"maps", "figures"} {
-		entries, err := os.ReadDir(filepath.Join(stage, sub))
-		if errors.Is(err, os.ErrNotExist) {
-			continue
-		}
-		if err != nil {
-			return err
-		}
-		if err := os.MkdirAll(filepath.Join(dir, sub), 0o755); err != nil {
-			return err
-		}
-		for _, e := range entries {
-			if err := os.Rename(filepath.Join(stage, sub, e.Name()), filepath.Join(dir, sub, e.Name())); err != nil {
-				return err
-			}
-		}
-	}
-	for _, name := range []string{"results.json", "recipe.json", "results.csv"} {
-		if err := os.Rename(filepath.Join(stage, name), filepath.Join(dir, name)); err != nil {
-			return err
-		}
-	}
-	return nil
 }

@@ -10,8 +10,43 @@ import (
 	"amplink/core/format"
 )
 
-// openFile opens a file for the core. The caller closes it.
+// checkRegular refuses anything but a regular file (after following
+// symbolic links) before it is opened: a named pipe would block the run
+// forever, a device would never end.
+func checkRegular(path string) error {
+	st, err := os.Stat(path)
+	if err != nil {
+		var pe *fs.PathError
+		if errors.As(err, &pe) {
+			pe.Op = "open" // as os.Open would say
+		}
+		return err
+	}
+	switch m := st.Mode(); {
+	case m.IsRegular():
+		return nil
+	case m.IsDir():
+		return fmt.Errorf("%s is a directory", path)
+	case m&fs.ModeNamedPipe != 0:
+		return fmt.Errorf("%s is a named pipe, not a regular file; amplink reads files only", path)
+	default:
+		return fmt.Errorf("%s is not a regular file (%v); amplink reads files only", path, m.Type())
+	}
+}
+
+// readRegular reads a whole regular file (see checkRegular).
+func readRegular(path string) ([]byte, error) {
+	if err := checkRegular(path); err != nil {
+		return nil, err
+	}
+	return os.ReadFile(path)
+}
+
+// openFile opens a regular file for the core. The caller closes it.
 func openFile(path string) (format.File, *os.File, error) {
+	if err := checkRegular(path); err != nil {
+		return format.File{}, nil, err
+	}
 	f, err := os.Open(path)
 	if err != nil {
 		return format.File{}, nil, err
@@ -21,9 +56,9 @@ func openFile(path string) (format.File, *os.File, error) {
 		f.Close()
 		return format.File{}, nil, err
 	}
-	if st.IsDir() {
+	if !st.Mode().IsRegular() {
 		f.Close()
-		return format.File{}, nil, fmt.Errorf("%s is a directory", path)
+		return format.File{}, nil, fmt.Errorf("%s is not a regular file", path)
 	}
 	return format.File{Name: path, R: f, Size: st.Size()}, f, nil
 }

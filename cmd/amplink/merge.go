@@ -110,7 +110,7 @@ func cmdMerge(stdout, stderr io.Writer, args []string) (err error) {
 func mergeTables(stderr io.Writer, files []string) ([]report.Row, int, error) {
 	var ins []mergeInput
 	for _, path := range files {
-		b, err := os.ReadFile(path)
+		b, err := readRegular(path)
 		if err != nil {
 			return nil, 0, fmt.Errorf("merge: %w", err)
 		}
@@ -229,7 +229,7 @@ func checkSameTests(stderr io.Writer, ins []mergeInput) error {
 // readGroups reads the groups file at path (parseGroups) and checks it
 // against the recordings in rows (checkGroups).
 func readGroups(stderr io.Writer, path string, rows []report.Row) (map[string]string, error) {
-	b, err := os.ReadFile(path)
+	b, err := readRegular(path)
 	if err != nil {
 		return nil, fmt.Errorf("merge: %w", err)
 	}

@@ -16,11 +16,13 @@ import (
 	"os"
 	"os/exec"
 	"os/signal"
+	"path"
 	"path/filepath"
 	"regexp"
 	"sort"
 	"strings"
 	"sync"
+	"syscall"
 	"time"
 
 	goapp "github.com/maxence-charriere/go-app/v9/pkg/app"
@@ -75,18 +77,32 @@ func cmdServe(stdout, stderr io.Writer, args []string) error {
 	if fs.NArg() > 0 {
 		return fmt.Errorf("serve: unexpected argument %q", fs.Arg(0))
 	}
+	// SIGTERM (a service manager, kill) stops the server like Ctrl-C, so
+	// that the temporary site is removed either way.
+	ctx, stop := signal.NotifyContext(context.Background(), serveSignals...)
+	defer stop()
+	return serveTemp(ctx, stdout, stderr, *addr, func(dir string) error {
+		_, err := buildSite(dir, *src)
+		return err
+	})
+}
+
+// serveSignals end amplink serve.
+var serveSignals = []os.Signal{os.Interrupt, syscall.SIGTERM}
+
+// serveTemp builds the site with build into a fresh temporary directory,
+// serves it on addr until ctx ends, and removes the directory.
+func serveTemp(ctx context.Context, stdout, stderr io.Writer, addr string, build func(dir string) error) error {
 	dir, err := os.MkdirTemp("", "amplink-site-")
 	if err != nil {
 		return err
 	}
 	defer os.RemoveAll(dir)
 	fmt.Fprintln(stderr, "building the site…")
-	if _, err := buildSite(dir, *src); err != nil {
+	if err := build(dir); err != nil {
 		return err
 	}
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
-	defer stop()
-	return serveSite(ctx, stdout, stderr, *addr, dir)
+	return serveSite(ctx, stdout, stderr, addr, dir)
 }
 
 // serveSite serves dir on addr until ctx ends.
@@ -126,10 +142,20 @@ func SiteHandler(dir string) http.Handler {
 			return
 		}
 		h := w.Header()
-		h.Set("Content-Security-Policy", app.CSP)
+		h.Set("Content-Security-Policy", app.HeaderCSP)
+		h.Set("X-Frame-Options", "DENY")
 		h.Set("X-Content-Type-Options", "nosniff")
 		h.Set("Referrer-Policy", "no-referrer")
 		h.Set("Cache-Control", "no-cache")
+		// No directory listings: a directory is served only through its
+		// index.html.
+		p := filepath.Join(dir, filepath.FromSlash(path.Clean("/"+r.URL.Path)))
+		if st, err := os.Stat(p); err == nil && st.IsDir() {
+			if _, err := os.Stat(filepath.Join(p, "index.html")); err != nil {
+				http.NotFound(w, r)
+				return
+			}
+		}
 		files.ServeHTTP(w, r)
 	})
 }
@@ -239,6 +265,9 @@ var rootPaths = []string{"/app.css", "/app.js", "/app-worker.js", "/manifest.web
 // ogURL matches the og:url meta once its attributes are sorted.
 var ogURL = regexp.MustCompile(`<meta content="[^"]*" property="og:url">\n?`)
 
+// cspMeta matches the CSP meta once its attributes are sorted.
+var cspMeta = regexp.MustCompile(`<meta content="[^"]*" http-equiv="Content-Security-Policy">\n?`)
+
 // relativize rewrites root-relative references in a generated file into
 // paths relative to the site's own directory, and drops the og:url meta,
 // which names the temporary generator server.
@@ -250,6 +279,15 @@ func relativize(name string, b []byte) []byte {
 	switch name {
 	case "index.html":
 		s = ogURL.ReplaceAllString(sortAttrs(s), "")
+		// The CSP meta goes first in the head, before any script or link,
+		// so that it governs everything the head loads.
+		if m := cspMeta.FindString(s); m != "" {
+			if i := strings.Index(s, "<head>"); i >= 0 {
+				s = strings.Replace(s, m, "", 1)
+				i = strings.Index(s, "<head>") + len("<head>")
+				s = s[:i] + "\n" + strings.TrimSuffix(m, "\n") + s[i:]
+			}
+		}
 		// web/start.js must run before app.js, which go-app always puts
 		// first (both are deferred, so they run in document order)
 		const start, appJS = `<script defer src="./web/start.js"></script>`, `<script defer src="app.js"></script>`

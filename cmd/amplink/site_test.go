@@ -6,14 +6,17 @@ import (
 	"bytes"
 	"compress/gzip"
 	"context"
+	"errors"
 	"io"
 	"net/http"
 	"net/http/httptest"
 	"os"
+	"os/signal"
 	"path/filepath"
 	"regexp"
 	"strings"
 	"sync"
+	"syscall"
 	"testing"
 	"time"
 
@@ -208,6 +211,9 @@ func TestSiteHandler(t *testing.T) {
 		{"GET", "/some/prefix/web/worker.js", 200, "javascript"},
 		{"POST", "/some/prefix/", 405, ""},
 		{"PUT", "/some/prefix/web/app.css", 405, ""},
+		// No directory listings.
+		{"GET", "/some/prefix/web/", 404, ""},
+		{"GET", "/some/prefix/web", 404, ""},
 	}
 	for _, c := range cases {
 		t.Run(c.method+" "+c.path, func(t *testing.T) {
@@ -226,8 +232,11 @@ func TestSiteHandler(t *testing.T) {
 			if got := res.Header.Get("Content-Type"); !strings.Contains(got, c.ctype) {
 				t.Errorf("Content-Type %q, want %q", got, c.ctype)
 			}
-			if got := res.Header.Get("Content-Security-Policy"); got != app.CSP {
+			if got := res.Header.Get("Content-Security-Policy"); got != app.HeaderCSP || !strings.Contains(got, "frame-ancestors 'none'") {
 				t.Errorf("Content-Security-Policy %q", got)
+			}
+			if got := res.Header.Get("X-Frame-Options"); got != "DENY" {
+				t.Errorf("X-Frame-Options %q, want DENY", got)
 			}
 		})
 	}
@@ -356,5 +365,62 @@ func TestSiteLoadingView(t *testing.T) {
 	}
 	if !strings.Contains(string(js), `const goappLoadingLabel = "Getting the analysis ready on this computer: {progress}%"`) {
 		t.Error("app.js does not carry the page's loading words")
+	}
+}
+
+// TestSiteCSPMetaFirst: the CSP meta must come first in the head, before
+// any script or link, so that it governs everything the head loads.
+func TestSiteCSPMetaFirst(t *testing.T) {
+	dir, _ := testSite(t)
+	b, err := os.ReadFile(filepath.Join(dir, "index.html"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := string(b)
+	head := strings.Index(s, "<head>")
+	csp := strings.Index(s, `http-equiv="Content-Security-Policy"`)
+	if head < 0 || csp < 0 {
+		t.Fatalf("no head (%d) or CSP meta (%d)", head, csp)
+	}
+	first := strings.Index(s[head+len("<head>"):], "<") + head + len("<head>")
+	if !strings.HasPrefix(s[first:], `<meta content="`+app.CSP+`" http-equiv="Content-Security-Policy">`) {
+		t.Fatalf("the head starts with %.80q, want the CSP meta", s[first:])
+	}
+}
+
+// TestServeSIGTERMRemovesTempDir: amplink serve stops on SIGTERM as on
+// Ctrl-C, and removes its temporary site directory.
+func TestServeSIGTERMRemovesTempDir(t *testing.T) {
+	ctx, stop := signal.NotifyContext(context.Background(), serveSignals...)
+	defer stop()
+	var out, errb syncBuffer
+	var dir string
+	done := make(chan error, 1)
+	built := make(chan struct{})
+	go func() {
+		done <- serveTemp(ctx, &out, &errb, "127.0.0.1:0", func(d string) error {
+			dir = d
+			close(built)
+			return os.WriteFile(filepath.Join(d, "index.html"), []byte("<!doctype html>"), 0o644)
+		})
+	}()
+	<-built
+	urlRe := regexp.MustCompile(`http://127\.0\.0\.1:\d+/`)
+	for i := 0; i < 200 && urlRe.FindString(out.String()) == ""; i++ {
+		time.Sleep(10 * time.Millisecond)
+	}
+	if err := syscall.Kill(os.Getpid(), syscall.SIGTERM); err != nil {
+		t.Fatal(err)
+	}
+	select {
+	case err := <-done:
+		if err != nil {
+			t.Fatalf("serve returned %v", err)
+		}
+	case <-time.After(5 * time.Second):
+		t.Fatal("serve did not stop on SIGTERM")
+	}
+	if _, err := os.Stat(dir); !errors.Is(err, os.ErrNotExist) {
+		t.Fatalf("temporary site %s is still there (%v)", dir, err)
 	}
 }

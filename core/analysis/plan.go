@@ -2,6 +2,7 @@ package analysis
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"math"
 	"runtime"
@@ -10,6 +11,7 @@ import (
 
 	"amplink/core/analysis/connect"
 	"amplink/core/data"
+	"amplink/core/recipe"
 	"amplink/core/report"
 	"amplink/core/spectral"
 )
@@ -92,7 +94,23 @@ func NewPlan(r *Recipe, ds *Dataset) (*Plan, error) {
 	}
 	p.freqs = freqs
 	p.cycles = spectral.Cycles(len(freqs), sp.Cycles[0], sp.Cycles[1])
-	p.bank, err = spectral.NewBank(rate, p.freqs, p.cycles)
+	// No wavelet may be longer than the data: checked before any kernel is
+	// built, so a tiny file claiming an absurd rate allocates nothing.
+	n := 0
+	if ds.Recording != nil {
+		n = ds.Recording.Len()
+	}
+	if ds.Epochs != nil {
+		n = max(n, ds.Epochs.NSamples)
+	}
+	p.bank, err = spectral.NewBankFor(rate, p.freqs, p.cycles, n)
+	if le := (*spectral.LengthError)(nil); errors.As(err, &le) {
+		field := "spectral.cycles"
+		if le.Index == 0 {
+			field = "spectral.low"
+		}
+		return nil, ferr(field, "%v (%s); raise spectral.low or lower spectral.cycles", err, ds.Name)
+	}
 	if err != nil {
 		return nil, ferr("spectral", "%v", err)
 	}
@@ -154,16 +172,7 @@ func resolveChannels(path string, sel []string, chs []data.Channel) ([]int, erro
 
 // freqIndices returns the grid frequencies inside [lo, hi].
 func freqIndices(path string, band [2]float64, freqs []float64) ([]int, error) {
-	var idx []int
-	for i, f := range freqs {
-		if f >= band[0]*(1-1e-9) && f <= band[1]*(1+1e-9) {
-			idx = append(idx, i)
-		}
-	}
-	if len(idx) == 0 {
-		return nil, ferr(path, "no grid frequency lies in [%g, %g] Hz (grid %s–%s Hz)", band[0], band[1], fmtHz(freqs[0]), fmtHz(freqs[len(freqs)-1]))
-	}
-	return idx, nil
+	return recipe.BandIndices(path, band, freqs)
 }
 
 func fmtHz(f float64) string { return fmt.Sprintf("%.4g", f) }

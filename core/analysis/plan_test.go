@@ -154,6 +154,11 @@ func TestPlanErrors(t *testing.T) {
 			"analyses[0].seed.freq: no grid frequency lies in [41, 45] Hz (grid 3–40 Hz)"},
 		{"above nyquist", `{"spectral":{"low":3,"high":125,"steps":10},"analyses":[{"type":"trial-window","seed":{"channel":"A","time":[0,0.5],"freq":[5,7]},"target":{"channel":"A","time":[0,0.5],"freq":[5,7]}}]}`,
 			"spectral.high: 125 Hz is at or above the Nyquist frequency 125 Hz"},
+		// 626-sample epochs at 250 Hz: 1e-6 Hz with 3 cycles needs ~4.8e8 taps.
+		{"wavelet longer than the data", `{"spectral":{"low":1e-6,"high":40,"steps":10},"analyses":[{"type":"trial-window","seed":{"channel":"A","time":[0,0.5],"freq":[5,7]},"target":{"channel":"A","time":[0,0.5],"freq":[5,7]}}]}`,
+			"spectral.low: the 1e-06 Hz wavelet with 3 cycles would be 9.55e+08 samples long (3.82e+06 s at 250 Hz), longer than the 626 samples of the data (synth)"},
+		{"top wavelet longer than the data", `{"spectral":{"low":3,"high":40,"steps":10,"cycles":[3,100]},"analyses":[{"type":"trial-window","seed":{"channel":"A","time":[0,0.5],"freq":[5,7]},"target":{"channel":"A","time":[0,0.5],"freq":[5,7]}}]}`,
+			"spectral.cycles: the 22.49 Hz wavelet with 45.9 cycles would be 651 samples long (2.6 s at 250 Hz), longer than the 626 samples"},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {

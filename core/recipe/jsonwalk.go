@@ -32,36 +32,105 @@ func Errorf(field, format string, args ...any) error {
 
 func ferr(field, format string, args ...any) error { return Errorf(field, format, args...) }
 
-// decodeJSON parses b into generic values, with numbers kept exact, and
-// turns syntax errors into line:column positions.
+// decodeJSON parses b into generic values, with numbers kept exact. Syntax
+// errors, a truncated text, a key given twice in one object and anything but
+// white space after the recipe object are errors with a line:column
+// position. A leading UTF-8 byte order mark is skipped.
 func decodeJSON(b []byte) (any, error) {
-	dec := json.NewDecoder(bytes.NewReader(b))
-	dec.UseNumber()
-	var v any
-	if err := dec.Decode(&v); err != nil {
+	b = bytes.TrimPrefix(b, []byte("\uFEFF"))
+	if len(bytes.TrimSpace(b)) == 0 {
+		return nil, errors.New("empty recipe")
+	}
+	// The syntax of the whole text first: json.Unmarshal's syntax errors
+	// carry the offset from the start of b, and refuse data after the value.
+	var raw json.RawMessage
+	if err := json.Unmarshal(b, &raw); err != nil {
 		var se *json.SyntaxError
-		var te *json.UnmarshalTypeError
-		off := int64(-1)
 		if errors.As(err, &se) {
-			// Offset counts the offending byte; point at it.
-			off = max(se.Offset-1, 0)
-		} else if errors.As(err, &te) {
-			off = te.Offset
-		}
-		if off >= 0 {
+			off := max(se.Offset-1, 0) // Offset counts the offending byte
+			if strings.Contains(se.Error(), "unexpected end") {
+				off = int64(len(b))
+				line, col := position(b, off)
+				return nil, fmt.Errorf("line %d, column %d: the recipe ends early (unexpected end of JSON input)", line, col)
+			}
 			line, col := position(b, off)
+			if strings.Contains(se.Error(), "after top-level value") {
+				return nil, fmt.Errorf("line %d, column %d: unexpected data after the recipe object", line, col)
+			}
 			return nil, fmt.Errorf("line %d, column %d: %v", line, col, err)
-		}
-		if err.Error() == "EOF" {
-			return nil, errors.New("empty recipe")
 		}
 		return nil, err
 	}
-	if dec.More() {
-		line, col := position(b, dec.InputOffset())
+	dec := json.NewDecoder(bytes.NewReader(b))
+	dec.UseNumber()
+	v, err := walkValue(dec, b)
+	if err != nil {
+		return nil, err
+	}
+	if off := dec.InputOffset(); len(bytes.TrimSpace(b[off:])) > 0 {
+		line, col := position(b, off+int64(len(b[off:])-len(bytes.TrimLeft(b[off:], " \t\r\n"))))
 		return nil, fmt.Errorf("line %d, column %d: unexpected data after the recipe object", line, col)
 	}
 	return v, nil
+}
+
+// walkValue reads one value from dec token by token, so that a key given
+// twice in an object is seen (json.Unmarshal keeps the last silently).
+func walkValue(dec *json.Decoder, b []byte) (any, error) {
+	tok, err := dec.Token()
+	if err != nil {
+		line, col := position(b, dec.InputOffset())
+		return nil, fmt.Errorf("line %d, column %d: %v", line, col, err)
+	}
+	d, ok := tok.(json.Delim)
+	if !ok {
+		return tok, nil
+	}
+	switch d {
+	case '{':
+		m := map[string]any{}
+		for dec.More() {
+			kt, err := dec.Token()
+			if err != nil {
+				line, col := position(b, dec.InputOffset())
+				return nil, fmt.Errorf("line %d, column %d: %v", line, col, err)
+			}
+			k, _ := kt.(string) // inside an object the decoder yields string keys only
+			end := dec.InputOffset()
+			if _, dup := m[k]; dup {
+				// Point at the key's opening quote.
+				start := bytes.LastIndexByte(b[:end-1], '"')
+				line, col := position(b, int64(max(start, 0)))
+				return nil, fmt.Errorf("line %d, column %d: key %q appears twice in one object", line, col, k)
+			}
+			v, err := walkValue(dec, b)
+			if err != nil {
+				return nil, err
+			}
+			m[k] = v
+		}
+		if _, err := dec.Token(); err != nil {
+			line, col := position(b, dec.InputOffset())
+			return nil, fmt.Errorf("line %d, column %d: %v", line, col, err)
+		}
+		return m, nil
+	case '[':
+		l := []any{}
+		for dec.More() {
+			v, err := walkValue(dec, b)
+			if err != nil {
+				return nil, err
+			}
+			l = append(l, v)
+		}
+		if _, err := dec.Token(); err != nil {
+			line, col := position(b, dec.InputOffset())
+			return nil, fmt.Errorf("line %d, column %d: %v", line, col, err)
+		}
+		return l, nil
+	}
+	line, col := position(b, dec.InputOffset())
+	return nil, fmt.Errorf("line %d, column %d: unexpected %q", line, col, d)
 }
 
 func position(b []byte, off int64) (line, col int) {

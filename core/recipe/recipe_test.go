@@ -74,6 +74,13 @@ func TestParseErrors(t *testing.T) {
 		name, in, want string
 	}{
 		{"empty", ``, "empty recipe"},
+		// Hostile recipes: every refusal has a position.
+		{"trailing brace", `{"analyses":[{"type":"trial-window",` + win + `}]}}`, "line 1, column 139: unexpected data after the recipe object"},
+		{"trailing bracket", `{"analyses":[{"type":"trial-window",` + win + `}]}]`, "line 1, column 139: unexpected data after the recipe object"},
+		{"duplicate key", "{\"analyses\":[{\"type\":\"trial-window\",\"permutations\":1000,\n" + win + `,"permutations":0}]}`, `line 2, column 101: key "permutations" appears twice in one object`},
+		{"duplicate top-level key", `{"analyses":[],"analyses":[]}`, `line 1, column 16: key "analyses" appears twice in one object`},
+		{"unexpected end", "{\"spectral\": {\"low\": 2,\n \"high\": 20", "line 2, column 12: the recipe ends early"},
+		{"only a BOM", "\uFEFF", "empty recipe"},
 		{"syntax", "{\n  \"analyses\": [,]\n}", "line 2, column 16"},
 		{"not object", `[1]`, "recipe: must be a JSON object"},
 		{"unknown top key", `{"analyses":[{"type":"trial-window",` + win + `}],"epoch":{}}`, `unknown key "epoch"`},
@@ -115,6 +122,40 @@ func TestParseErrors(t *testing.T) {
 			}
 			if !strings.Contains(err.Error(), tc.want) {
 				t.Errorf("error %q does not contain %q", err, tc.want)
+			}
+		})
+	}
+}
+
+// TestCheckBands guards the recipe-only band check the command line runs
+// before it opens any data, so that the error names the recipe file.
+func TestCheckBands(t *testing.T) {
+	win := func(f string) string {
+		return `{"channel":"A","time":[0,1],"freq":` + f + `}`
+	}
+	for _, tc := range []struct{ name, in, want string }{
+		{"ok", `{"analyses":[{"type":"trial-window","seed":` + win("[4,8]") + `,"target":` + win("[4,8]") + `}]}`, ""},
+		{"seed above the grid", `{"analyses":[{"type":"trial-window","seed":` + win("[41,45]") + `,"target":` + win("[4,8]") + `}]}`,
+			"analyses[0].seed.freq: no grid frequency lies in [41, 45] Hz (grid 2–40 Hz)"},
+		{"tf-map target between grid points", `{"spectral":{"low":2,"high":40,"steps":3},"analyses":[{"type":"tf-map","seed":` + win("[2,3]") + `,"target":` + win("[10,11]") + `}]}`,
+			"analyses[0].target.freq: no grid frequency lies in [10, 11] Hz (grid 2–40 Hz)"},
+		{"envelope target band", `{"analyses":[{"type":"envelope","channels":["A","B"],"freq":[8,12],"targetFreq":[60,80]}]}`,
+			"analyses[0].targetFreq: no grid frequency lies in [60, 80] Hz (grid 2–40 Hz)"},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			r, err := Parse([]byte(tc.in))
+			if err != nil {
+				t.Fatal(err)
+			}
+			err = CheckBands(r)
+			if tc.want == "" {
+				if err != nil {
+					t.Fatal(err)
+				}
+				return
+			}
+			if err == nil || err.Error() != tc.want {
+				t.Fatalf("got %v, want %s", err, tc.want)
 			}
 		})
 	}

@@ -74,6 +74,7 @@ func ReadCSVLines(r io.Reader, name string) (*Results, []int, error) {
 	if err != nil {
 		return nil, nil, parseErr(err)
 	}
+	unquoteCells(header)
 	hline, _ := cr.FieldPos(0)
 	pos := make(map[string]int, len(header))
 	for i, h := range header {
@@ -103,6 +104,7 @@ func ReadCSVLines(r io.Reader, name string) (*Results, []int, error) {
 		if err != nil {
 			return nil, nil, parseErr(err)
 		}
+		unquoteCells(rec)
 		line, _ := cr.FieldPos(0)
 		if len(rec) != len(header) {
 			_, col := cr.FieldPos(max(len(rec), 1) - 1)

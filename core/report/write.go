@@ -84,14 +84,18 @@ func (res *Results) Table() (header []string, rows [][]string) {
 }
 
 // WriteCSV writes the results table: one header line, one line per row.
+// A cell a spreadsheet would run as a formula gets a leading apostrophe
+// (QuoteCell); numbers are written as they are.
 func WriteCSV(w io.Writer, res *Results) error {
 	cw := csv.NewWriter(w)
 	header, rows := res.Table()
-	if err := cw.Write(header); err != nil {
+	if err := cw.Write(quoteCells(header)); err != nil {
 		return err
 	}
-	if err := cw.WriteAll(rows); err != nil {
-		return err
+	for _, r := range rows {
+		if err := cw.Write(quoteCells(r)); err != nil {
+			return err
+		}
 	}
 	cw.Flush()
 	return cw.Error()
@@ -102,7 +106,7 @@ func WriteCSV(w io.Writer, res *Results) error {
 func WriteMapCSV(w io.Writer, m *Map) error {
 	cw := csv.NewWriter(w)
 	head := append([]string{m.RowName + `\` + m.ColName}, m.ColLabels...)
-	if err := cw.Write(head); err != nil {
+	if err := cw.Write(quoteCells(head)); err != nil {
 		return err
 	}
 	for i, vals := range m.Values {
@@ -111,7 +115,7 @@ func WriteMapCSV(w io.Writer, m *Map) error {
 		if i < len(m.RowLabels) {
 			label = m.RowLabels[i]
 		}
-		rec = append(rec, label)
+		rec = append(rec, QuoteCell(label))
 		for _, v := range vals {
 			rec = append(rec, Num(v))
 		}

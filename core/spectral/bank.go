@@ -30,11 +30,53 @@ type specEntry struct {
 	w    []complex128
 }
 
+// MaxTaps bounds the kernels of one Bank: their taps together (complex128,
+// 16 bytes each) may number at most MaxTaps, 2^24 (256 MiB). A legitimate
+// grid needs far fewer: 50 wavelets from 0.5 Hz with 10 cycles at 5 kHz
+// come to about 6.4 million taps.
+const MaxTaps = 1 << 24
+
+// LengthError says a wavelet would be longer than the data it is applied to
+// (or than MaxTaps). Taps is computed in floating point, so it may exceed
+// any int.
+type LengthError struct {
+	Index  int     // the wavelet's index in the bank
+	Freq   float64 // Hz
+	Cycles float64
+	Rate   float64 // Hz
+	Taps   float64 // the kernel's length 2H+1 in samples
+	Max    int     // the most taps allowed: the data's length in samples
+	Total  bool    // the bank's taps together exceed MaxTaps
+}
+
+func (e *LengthError) Error() string {
+	if e.Total {
+		return fmt.Sprintf("the wavelets together would have %.3g taps at %g Hz, more than the %d a bank may hold", e.Taps, e.Rate, MaxTaps)
+	}
+	return fmt.Sprintf("the %.4g Hz wavelet with %.3g cycles would be %.3g samples long (%.3g s at %g Hz), longer than the %d samples of the data",
+		e.Freq, e.Cycles, e.Taps, e.Taps/e.Rate, e.Rate, e.Max)
+}
+
+// Taps returns the length 2H+1 of the kernel with n cycles at f Hz sampled
+// at rate Hz, computed in floating point (see Half), so that an absurd rate
+// or frequency gives a large number rather than an overflowed int.
+func Taps(rate, f, n float64) float64 {
+	return 2*math.Ceil(Support*SigmaT(f, n)*rate) + 1
+}
+
 // NewBank builds the wavelets with cycles[i] cycles at freqs[i] Hz for
 // signals sampled at rate Hz. Every frequency must be positive and below the
 // Nyquist frequency rate/2, every cycle count positive, and both slices of
-// the same non-zero length. The slices are copied.
+// the same non-zero length. The slices are copied. The kernels together may
+// have at most MaxTaps taps.
 func NewBank(rate float64, freqs, cycles []float64) (*Bank, error) {
+	return NewBankFor(rate, freqs, cycles, MaxTaps)
+}
+
+// NewBankFor is NewBank for data of maxLen samples: it refuses, with a
+// *LengthError and before building any kernel, a wavelet longer than maxLen
+// samples, since it would be longer than the data it is applied to.
+func NewBankFor(rate float64, freqs, cycles []float64, maxLen int) (*Bank, error) {
 	if math.IsNaN(rate) || math.IsInf(rate, 0) || rate <= 0 {
 		return nil, fmt.Errorf("spectral: sample rate %v Hz must be a positive number", rate)
 	}
@@ -43,6 +85,25 @@ func NewBank(rate float64, freqs, cycles []float64) (*Bank, error) {
 	}
 	if len(cycles) != len(freqs) {
 		return nil, fmt.Errorf("spectral: %d frequencies but %d cycle counts", len(freqs), len(cycles))
+	}
+	maxLen = min(maxLen, MaxTaps)
+	total := 0.0
+	for i, f := range freqs {
+		n := cycles[i]
+		switch {
+		case math.IsNaN(f) || f <= 0 || f >= rate/2:
+			return nil, fmt.Errorf("spectral: frequency %d (%v Hz) must be above 0 and below the Nyquist frequency %v Hz", i, f, rate/2)
+		case math.IsNaN(n) || math.IsInf(n, 0) || n <= 0:
+			return nil, fmt.Errorf("spectral: cycle count %d (%v) must be a positive number", i, n)
+		}
+		t := Taps(rate, f, n)
+		if !(t <= float64(maxLen)) {
+			return nil, &LengthError{Index: i, Freq: f, Cycles: n, Rate: rate, Taps: t, Max: maxLen}
+		}
+		total += t
+	}
+	if total > MaxTaps {
+		return nil, &LengthError{Index: -1, Rate: rate, Taps: total, Max: maxLen, Total: true}
 	}
 	b := &Bank{
 		rate:    rate,
@@ -53,15 +114,8 @@ func NewBank(rate float64, freqs, cycles []float64) (*Bank, error) {
 		spectra: make(map[specKey]*specEntry),
 	}
 	for i, f := range freqs {
-		n := cycles[i]
-		switch {
-		case math.IsNaN(f) || f <= 0 || f >= rate/2:
-			return nil, fmt.Errorf("spectral: frequency %d (%v Hz) must be above 0 and below the Nyquist frequency %v Hz", i, f, rate/2)
-		case math.IsNaN(n) || math.IsInf(n, 0) || n <= 0:
-			return nil, fmt.Errorf("spectral: cycle count %d (%v) must be a positive number", i, n)
-		}
-		b.halves[i] = Half(rate, f, n)
-		b.kernels[i] = Kernel(nil, rate, f, n)
+		b.halves[i] = Half(rate, f, cycles[i])
+		b.kernels[i] = Kernel(nil, rate, f, cycles[i])
 	}
 	return b, nil
 }

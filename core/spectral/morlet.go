@@ -83,8 +83,15 @@ func FWHM(sigma float64) float64 { return 2 * math.Sqrt(2*math.Ln2) * sigma }
 
 // Half returns the kernel half-length H = ⌈Support·σt·rate⌉ in samples of the
 // wavelet with n cycles at f Hz sampled at rate Hz. The kernel has 2H+1 taps.
+// It panics when H would not fit in an int32: check Taps (or build the
+// kernels with NewBank, which does) before trusting a rate or frequency
+// from a file.
 func Half(rate, f, n float64) int {
-	return int(math.Ceil(Support * SigmaT(f, n) * rate))
+	h := math.Ceil(Support * SigmaT(f, n) * rate)
+	if !(h >= 0 && h <= math.MaxInt32) {
+		panic(fmt.Sprintf("spectral: wavelet half-length %v samples (%v Hz, %v cycles, %v Hz) is out of range", h, f, n, rate))
+	}
+	return int(h)
 }
 
 // Kernel writes the amplitude-normalised complex Morlet wavelet with n cycles

@@ -236,7 +236,7 @@ func Open(r *recipe.Recipe, src wire.Source, files Files) (*dataset.Dataset, err
 	}
 	ds, err := dataset.Open(r, f, ev, files)
 	if errors.Is(err, data.ErrTooLarge) {
-		err = fmt.Errorf("%w. The page's workers hold at most %d MiB of samples each; the command-line tool (amplink run) has no such limit", err, data.MaxSampleBytes>>20)
+		err = fmt.Errorf("%w. The page's workers hold at most %d MiB of samples each; the command-line tool (amplink run) holds as much as its --max-memory flag allows", err, data.MaxSampleBytes>>20)
 	}
 	return ds, err
 }

@@ -274,6 +274,9 @@ func TestSplitEqualsRun(t *testing.T) {
 	}
 }
 
+// lowRecipe asks for a 1e-6 Hz wavelet, some 1e9 samples long at 500 Hz.
+var lowRecipe = []byte(`{"epochs":{"event":"tone","start":-1.5,"end":2},"spectral":{"low":1e-6,"high":40,"steps":5},"analyses":[{"type":"trial-window","seed":{"channel":"C4","time":[-0.5,-0.1],"freq":[15,25]},"target":{"channel":"Pz","time":[0.3,0.8],"freq":[15,25]}}]}`)
+
 func TestHandleErrors(t *testing.T) {
 	csvBad := []byte("trial,time,C4\n1,0,abc\n")
 	cases := []struct {
@@ -289,6 +292,9 @@ func TestHandleErrors(t *testing.T) {
 		{"finish without run", wire.Request{Op: wire.OpFinish, Seq: 9}, nil, nil, "finish without a matching run"},
 		{"unknown op", wire.Request{Op: "dance"}, nil, nil, `unknown operation "dance"`},
 		{"names and buffers", wire.Request{Op: wire.OpDescribe}, []string{"a", "b"}, [][]byte{nil}, "2 file names for 1 buffers"},
+		// The page's workers run the same bound: a message, not a crashed worker.
+		{"wavelet longer than the data", wire.Request{Op: wire.OpRun, Source: wire.Source{Demo: true}, Recipe: lowRecipe}, nil, nil, "spectral.low: the 1e-06 Hz wavelet"},
+		{"power map wavelet longer than the data", wire.Request{Op: wire.OpPower, Source: wire.Source{Demo: true}, Recipe: lowRecipe, Channel: "C4"}, nil, nil, "the 1e-06 Hz wavelet"},
 		{"unknown channel", wire.Request{Op: wire.OpPower, Source: wire.Source{Demo: true}, Recipe: demo.Recipe(), Channel: "nope"}, nil, nil, `no channel "nope"`},
 	}
 	for _, c := range cases {

@@ -71,7 +71,7 @@ func Power(req wire.Request, files Files) (*wire.Figure, error) {
 	if sp.High >= e.Rate/2 {
 		return nil, fmt.Errorf("spectral.high: %g Hz is at or above the Nyquist frequency %g Hz of %s", sp.High, e.Rate/2, ds.Name)
 	}
-	bank, err := spectral.NewBank(e.Rate, freqs, spectral.Cycles(len(freqs), sp.Cycles[0], sp.Cycles[1]))
+	bank, err := spectral.NewBankFor(e.Rate, freqs, spectral.Cycles(len(freqs), sp.Cycles[0], sp.Cycles[1]), e.NSamples)
 	if err != nil {
 		return nil, fmt.Errorf("spectral: %v", err)
 	}

@@ -155,6 +155,9 @@ var invalidCases = []struct {
 	is   error
 }{
 	{"invalid-empty.csv", `csv: invalid-empty.csv: file is empty`, ErrNoData},
+	// Rates no recording can have (data.MaxRate, 1 MHz).
+	{"invalid-rate-1e300.csv", `csv: invalid-rate-1e300.csv:4: times from 0 to 2e-300 s over 3 samples: sample rate 1e+300 Hz is above the limit of 1 MHz; no EEG, MEG, LFP or sound-card recording is sampled that fast (amplifiers sample at up to tens of kHz, sound cards at up to 768 kHz), so the header or time axis is wrong: impossible sample rate`, ErrTimeAxis},
+	{"invalid-rate-epoched-1ns.csv", `csv: invalid-rate-epoched-1ns.csv:4: times from 0 to 2e-09 s over 3 samples: sample rate 1e+09 Hz is above the limit of 1 MHz; no EEG, MEG, LFP or sound-card recording is sampled that fast (amplifiers sample at up to tens of kHz, sound cards at up to 768 kHz), so the header or time axis is wrong: impossible sample rate`, ErrTimeAxis},
 	{"invalid-blank.csv", `csv: invalid-blank.csv: file is empty`, ErrNoData},
 	{"invalid-header-only.csv", `csv: invalid-header-only.csv:1: header only; no data rows follow`, ErrNoData},
 	{"invalid-no-channels.csv", `csv: invalid-no-channels.csv:1: header has no channel columns after time`, format.ErrSyntax},

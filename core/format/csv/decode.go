@@ -212,6 +212,9 @@ func (d *decoder) rate(n int, t0, tl float64, line int) (float64, error) {
 	if math.IsNaN(rate) || math.IsInf(rate, 0) || rate <= 0 {
 		return 0, d.r.Errorf(line, 0, ErrTimeAxis, "times from %s to %s s give no usable sample rate", fmtT(t0), fmtT(tl))
 	}
+	if err := data.CheckRate(rate); err != nil {
+		return 0, d.r.Errorf(line, 0, ErrTimeAxis, "times from %s to %s s over %d samples: %v", fmtT(t0), fmtT(tl), n, err)
+	}
 	// The rounding error of the times, relative to their span.
 	rel := 8 * 0x1p-52 * math.Max(math.Abs(t0), math.Abs(tl)) / (tl - t0)
 	rel = math.Min(math.Max(rel, 1e-12), 1e-7)

@@ -9,6 +9,7 @@ import (
 	"strings"
 	"time"
 
+	"amplink/core/data"
 	"amplink/core/format"
 )
 
@@ -261,6 +262,14 @@ func (p *parser) header() (*Header, error) {
 	if err := p.signals(h, sh, int(ns)); err != nil {
 		return nil, err
 	}
+	for i := range h.Signals {
+		if h.Signals[i].Annotations {
+			continue
+		}
+		if err := data.CheckRate(h.Rate(i)); err != nil {
+			return nil, p.errf(offDuration, "duration of a data record", data.ErrRate, "%v s with %d samples of signal %d per record: %v", dur, h.Signals[i].SamplesPerRecord, i+1, err)
+		}
+	}
 	if err := p.size(h, records); err != nil {
 		return nil, err
 	}
@@ -352,6 +361,15 @@ func (p *parser) signals(h *Header, sh []byte, ns int) error {
 			}
 		}
 		sg.DigMin, sg.DigMax = int(dmin), int(dmax)
+		if !sg.Annotations {
+			// Every stored value, dlo..dhi, must scale to a finite float32.
+			g := sg.Gain()
+			lo, hi := sg.Physical(dlo), sg.Physical(dhi)
+			if math.IsInf(g, 0) || math.IsNaN(g) || !(math.Abs(lo) <= math.MaxFloat32) || !(math.Abs(hi) <= math.MaxFloat32) {
+				return p.errf(pmaxAt, name(fPhysMax), format.ErrUnsupported,
+					"physical range %v..%v over digital %d..%d gives gain %v and samples up to %.3g, beyond the float32 range (±3.4e38) samples are held in", sg.PhysMin, sg.PhysMax, dmin, dmax, g, math.Max(math.Abs(lo), math.Abs(hi)))
+			}
+		}
 		sg.offset = recBytes
 		recBytes += spr * int64(bps)
 	}

@@ -50,7 +50,8 @@ type Sidecar struct {
 // Reader decodes f32 epochs. The zero value is ready to use.
 type Reader struct {
 	// MaxBytes refuses binaries larger than this before allocating;
-	// 0 means DefaultMaxBytes.
+	// 0 means data.MaxSampleBytes when that is set,
+	// else DefaultMaxBytes.
 	MaxBytes int64
 }
 
@@ -145,6 +146,7 @@ var known = map[string]bool{
 // ParseSidecar parses and checks the sidecar b; name is used in errors,
 // which give the line and column of the offending value and the key.
 func ParseSidecar(name string, b []byte) (*Sidecar, error) {
+	b = bytes.TrimPrefix(b, []byte("\uFEFF")) // a UTF-8 byte order mark, as CSV accepts
 	fields, err := topLevel(name, b)
 	if err != nil {
 		return nil, err
@@ -176,6 +178,9 @@ func ParseSidecar(name string, b []byte) (*Sidecar, error) {
 	var err2 error
 	if sc.SampleRate, err2 = number(fields["sampleRate"].raw); err2 != nil || !(sc.SampleRate > 0) {
 		return nil, bad("sampleRate", "must be a positive number of Hz, got %s", short(fields["sampleRate"].raw))
+	}
+	if err := data.CheckRate(sc.SampleRate); err != nil {
+		return nil, bad("sampleRate", "%v", err)
 	}
 	if sc.Start, err2 = number(fields["start"].raw); err2 != nil {
 		return nil, bad("start", "must be a number of seconds, got %s", short(fields["start"].raw))
@@ -383,6 +388,9 @@ func (r *Reader) Read(bin format.File, sidecarName string, sc *Sidecar) (*data.E
 				bin.Size, sidecarName, sc.Trials, nc, sc.Samples, need)}
 	}
 	limit := r.MaxBytes
+	if limit <= 0 {
+		limit = data.MaxSampleBytes // the caller's sample budget (amplink run --max-memory, a page worker)
+	}
 	if limit <= 0 {
 		limit = DefaultMaxBytes
 	}

@@ -158,6 +158,11 @@ func TestSidecarErrors(t *testing.T) {
 	for _, tc := range []struct{ name, json, want string }{
 		{"rate zero", `{"sampleRate": 0, "channels": ["A"], "trials": 1, "samples": 2, "start": 0}`,
 			"f32: s.json:1:16 (sampleRate): must be a positive number of Hz, got 0"},
+		{"rate 1e9 Hz", `{"sampleRate": 1e9, "channels": ["A"], "trials": 1, "samples": 2, "start": 0}`,
+			"f32: s.json:1:16 (sampleRate): sample rate 1e+09 Hz is above the limit of 1 MHz; no EEG, MEG, LFP or sound-card recording is sampled that fast (amplifiers sample at up to tens of kHz, sound cards at up to 768 kHz), so the header or time axis is wrong: impossible sample rate"},
+		{"duplicate key after a BOM", "\uFEFF{" + ok + `, "start": 1}`,
+			"f32: s.json:1:88 (start): key appears twice"},
+		{"trailing brace", `{` + ok + `}}`, "f32: s.json:1:78: syntax error: invalid character '}' after top-level value"},
 		{"rate string", `{"sampleRate": "500", "channels": ["A"], "trials": 1, "samples": 2, "start": 0}`,
 			`f32: s.json:1:16 (sampleRate): must be a positive number of Hz, got "500"`},
 		{"no channels", `{"sampleRate": 5, "channels": [], "trials": 1, "samples": 2, "start": 0}`,
@@ -189,6 +194,18 @@ func TestSidecarErrors(t *testing.T) {
 				t.Errorf("got  %s\nwant %s", err, tc.want)
 			}
 		})
+	}
+}
+
+// TestSidecarAcceptsBOM guards the UTF-8 byte order mark some editors put
+// at the start of a JSON file: accepted, as in CSV.
+func TestSidecarAcceptsBOM(t *testing.T) {
+	sc, err := ParseSidecar("s.json", []byte("\uFEFF{\"sampleRate\": 500, \"channels\": [\"A\"], \"trials\": 1, \"samples\": 2, \"start\": 0}"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if sc.SampleRate != 500 || len(sc.Channels) != 1 {
+		t.Fatalf("sidecar %+v", sc)
 	}
 }
 
@@ -239,6 +256,16 @@ func TestLimits(t *testing.T) {
 		r := Reader{MaxBytes: 20}
 		_, err := r.Read(format.Bytes("t.f32", make([]byte, 24)), "t.json", sc)
 		if err == nil || err.Error() != "f32: t.f32: 24 bytes exceed the limit of 20 bytes: unsupported" || !errors.Is(err, format.ErrUnsupported) {
+			t.Errorf("got %v", err)
+		}
+	})
+	// The caller's sample budget (amplink run --max-memory) is the limit
+	// when MaxBytes is 0.
+	t.Run("sample budget", func(t *testing.T) {
+		defer func(v int64) { data.MaxSampleBytes = v }(data.MaxSampleBytes)
+		data.MaxSampleBytes = 20
+		_, err := new(Reader).Read(format.Bytes("t.f32", make([]byte, 24)), "t.json", sc)
+		if err == nil || err.Error() != "f32: t.f32: 24 bytes exceed the limit of 20 bytes: unsupported" {
 			t.Errorf("got %v", err)
 		}
 	})

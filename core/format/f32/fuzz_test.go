@@ -26,6 +26,12 @@ func FuzzDecode(f *testing.F) {
 		}
 		f.Add(side, bin)
 	}
+	// Hostile sidecars: a key given twice, data after the object, a BOM.
+	bin := make([]byte, 8)
+	const ok = `"sampleRate": 500, "channels": ["A"], "trials": 1, "samples": 2, "start": 0`
+	for _, side := range []string{`{` + ok + `, "samples": 0}`, `{` + ok + `}}`, `{` + ok + `}]`, "\uFEFF{" + ok + `}`, `{"sampleRate": 1e9, "channels": ["A"], "trials": 1, "samples": 2, "start": 0}`} {
+		f.Add([]byte(side), bin)
+	}
 	f.Fuzz(func(t *testing.T, side, bin []byte) {
 		d, err := Decode(format.Bytes("z.f32", bin), mapSib{"z.json": side})
 		if err != nil {

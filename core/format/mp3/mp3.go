@@ -56,7 +56,8 @@ type Header struct {
 // Reader decodes MP3 files. The zero value is ready to use.
 type Reader struct {
 	// MaxBytes refuses files whose samples would take more than this many
-	// bytes as float32, before allocating; 0 means DefaultMaxBytes.
+	// bytes as float32, before allocating; 0 means data.MaxSampleBytes when that is set,
+	// else DefaultMaxBytes.
 	MaxBytes int64
 }
 
@@ -227,19 +228,24 @@ func (r *Reader) Read(f format.File) (rec *data.Recording, err error) {
 	}
 	// go-mp3 indexes tables with values from the file; a malformed file
 	// must not bring the program down.
+	// The counter gives the position the decoder had read to when it failed.
+	src := &counter{r: io.NewSectionReader(f.R, 0, f.Size)}
 	defer func() {
 		if p := recover(); p != nil {
-			rec, err = nil, errAt(f, -1, "", fmt.Errorf("the decoder failed on malformed data (%v): %w", p, format.ErrSyntax))
+			rec, err = nil, errAt(f, src.n, "", fmt.Errorf("the decoder failed on malformed data before this offset (%v): %w", p, format.ErrSyntax))
 		}
 	}()
-	dec, err := gomp3.NewDecoder(io.NewSectionReader(f.R, 0, f.Size))
+	dec, err := gomp3.NewDecoder(src)
 	if err == io.EOF {
 		return nil, errAt(f, h.Offset, "", fmt.Errorf("decoding: the first frame is cut short: %w", format.ErrTruncated))
 	}
 	if err != nil {
-		return nil, errAt(f, -1, "", fmt.Errorf("decoding: %w", err))
+		return nil, errAt(f, src.n, "", fmt.Errorf("decoding, before this offset: %w", err))
 	}
 	limit := r.MaxBytes
+	if limit <= 0 {
+		limit = data.MaxSampleBytes // the caller's sample budget (amplink run --max-memory, a page worker)
+	}
 	if limit <= 0 {
 		limit = DefaultMaxBytes
 	}
@@ -280,7 +286,7 @@ func (r *Reader) Read(f format.File) (rec *data.Recording, err error) {
 			break
 		}
 		if err != nil {
-			return nil, errAt(f, -1, "", fmt.Errorf("decoding sample %d: %w", k+1, err))
+			return nil, errAt(f, src.n, "", fmt.Errorf("decoding sample %d, before this offset: %w", k+1, err))
 		}
 	}
 	if k < total {
@@ -335,4 +341,25 @@ func trim(rec *data.Recording, h *Header, n int64) {
 	rec.Notes = append(rec.Notes, fmt.Sprintf(
 		"removed %d leading samples (Info frame %d, encoder delay %d, decoder delay %d) and %d trailing (padding %d less the decoder delay)",
 		skip, per, h.Delay, DecoderDelay, n-end, h.Padding))
+}
+
+// counter keeps the position of the decoder in the file (go-mp3 reads and
+// seeks; it needs the Seek to find the length).
+type counter struct {
+	r *io.SectionReader
+	n int64
+}
+
+func (c *counter) Read(p []byte) (int, error) {
+	n, err := c.r.Read(p)
+	c.n += int64(n)
+	return n, err
+}
+
+func (c *counter) Seek(off int64, whence int) (int64, error) {
+	n, err := c.r.Seek(off, whence)
+	if err == nil {
+		c.n = n
+	}
+	return n, err
 }

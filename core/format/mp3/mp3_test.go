@@ -169,6 +169,16 @@ func TestCut(t *testing.T) {
 	}
 }
 
+// junkFrame is an MPEG-1 Layer III frame header (FF FB 90 64) followed by
+// 600 bytes of i·37 mod 256.
+func junkFrame() []byte {
+	b := []byte{0xff, 0xfb, 0x90, 0x64}
+	for i := range 600 {
+		b = append(b, byte(i*37))
+	}
+	return b
+}
+
 func TestInvalid(t *testing.T) {
 	for _, tc := range []struct {
 		name     string
@@ -180,6 +190,12 @@ func TestInvalid(t *testing.T) {
 		{"invalid-noframe.mp3", nil, "mp3: invalid-noframe.mp3: offset 26 (frame header): no MPEG-1/2 Layer III frame header in the 25 bytes from here", nil},
 		{"header only", []byte("\xff\xfb\x50\xc4"), "mp3: header only: offset 0: decoding: the first frame is cut short: file is truncated", format.ErrTruncated},
 		{"id3 too long", []byte("ID3\x03\x00\x00\x00\x00\x10\x00abc"), "mp3: id3 too long: offset 13 (ID3 tag): tag of 2058 bytes runs past the end of the file: file is truncated", format.ErrTruncated},
+		// A frame header followed by junk: go-mp3 fails inside the frame; the
+		// error gives the offset the decoder had read to.
+		// mpeg2-mono.mp3 with bytes overwritten at random (PCG 3, 4): go-mp3
+		// indexes a table out of range; recovered, with the offset reached.
+		{"invalid-decoder-panic.mp3", nil, "mp3: invalid-decoder-panic.mp3: offset 1358: the decoder failed on malformed data before this offset (runtime error: index out of range [38] with length 38): syntax error", format.ErrSyntax},
+		{"decoder failure has an offset", junkFrame(), "mp3: decoder failure has an offset: offset 417: decoding, before this offset: mp3: is_pos was too big: 576", nil},
 		{"id3 not syncsafe", []byte("ID3\x03\x00\x00\x00\x80\x10\x00abc"), "mp3: id3 not syncsafe: offset 6 (ID3 tag size): size bytes 00 80 10 00 are not syncsafe", nil},
 	} {
 		t.Run(tc.name, func(t *testing.T) {

@@ -64,7 +64,8 @@ type Header struct {
 // Reader decodes WAV files. The zero value is ready to use.
 type Reader struct {
 	// MaxBytes refuses files whose samples would take more than this many
-	// bytes as float32, before allocating; 0 means DefaultMaxBytes.
+	// bytes as float32, before allocating; 0 means data.MaxSampleBytes when that is set,
+	// else DefaultMaxBytes.
 	MaxBytes int64
 }
 
@@ -230,6 +231,8 @@ func (h *Header) parseFmt(f format.File, b []byte, off int64) error {
 		return errAt(f, off+2, "channels", fmt.Errorf("%d channels, more than %d: %w", h.Channels, MaxChannels, format.ErrUnsupported))
 	case rate == 0:
 		return errf(f, off+4, "sample rate", "sample rate is 0 Hz")
+	case float64(rate) > data.MaxRate:
+		return errf(f, off+4, "sample rate", "%v", data.CheckRate(float64(rate)))
 	case tag == TagPCM && h.Bits != 8 && h.Bits != 16 && h.Bits != 24 && h.Bits != 32,
 		tag == TagFloat && h.Bits != 32 && h.Bits != 64:
 		return errAt(f, off+14, "bits per sample", fmt.Errorf("%d-bit %s samples are not supported (PCM 8, 16, 24, 32; float 32, 64): %w",
@@ -253,6 +256,9 @@ func (r *Reader) Read(f format.File) (*data.Recording, error) {
 		return nil, err
 	}
 	limit := r.MaxBytes
+	if limit <= 0 {
+		limit = data.MaxSampleBytes // the caller's sample budget (amplink run --max-memory, a page worker)
+	}
 	if limit <= 0 {
 		limit = DefaultMaxBytes
 	}

@@ -209,6 +209,9 @@ func TestHeaderErrors(t *testing.T) {
 		{"short", func(b []byte) []byte { return b[:8] }, "wav: x.wav: offset 8 (RIFF header): file is truncated"},
 		{"257 channels", func(b []byte) []byte { b[22], b[23] = 1, 1; return b },
 			"wav: x.wav: offset 22 (channels): 257 channels, more than 256: unsupported"},
+		// A 512-byte file claiming 2^32−1 Hz would need wavelets of gigabytes.
+		{"rate 2^32-1 Hz", func(b []byte) []byte { binaryPut32(b[24:], 4294967295); return b },
+			"wav: x.wav: offset 24 (sample rate): sample rate 4.29497e+09 Hz is above the limit of 1 MHz; no EEG, MEG, LFP or sound-card recording is sampled that fast (amplifiers sample at up to tens of kHz, sound cards at up to 768 kHz), so the header or time axis is wrong: impossible sample rate"},
 		{"12 bits", func(b []byte) []byte { b[34] = 12; return b },
 			"wav: x.wav: offset 34 (bits per sample): 12-bit PCM samples are not supported (PCM 8, 16, 24, 32; float 32, 64): unsupported"},
 		{"fmt size 14", func(b []byte) []byte { b[16] = 14; return b },
