@@ -224,12 +224,14 @@ func (p *Plan) drawFigures(ctx context.Context, res []UnitResult, out *report.Re
 			if err = d.powerFigures(a); err == nil {
 				err = d.scatterFigures(f)
 			}
+			d.scalpMaps(f) // figsensors.go
 		case *envPlan:
 			if f.como {
 				d.comodulogram(f)
 			} else {
 				d.matrix(f)
 				err = d.envelopes(f)
+				d.network(f) // figsensors.go
 			}
 		default:
 			if a.Type == TypeTFMap {
@@ -688,6 +690,7 @@ func (d *figDraw) matrix(ep *envPlan) {
 		return
 	}
 	opt := plot.MatrixOptions{Frame: plot.Frame{XLabel: "channel", YLabel: "channel", Width: 360, Height: 300}}
+	opt.Significant, opt.MarkNote = d.matrixMarks(ep) // figsensors.go
 	var title string
 	if ep.fb != nil {
 		title = fmt.Sprintf("%s: envelope r across bands", a.ID)

@@ -9,15 +9,21 @@ import (
 // Point is a position in head coordinates (see the package comment).
 type Point struct{ X, Y, Z float64 }
 
-func (p Point) add(q Point) Point     { return Point{p.X + q.X, p.Y + q.Y, p.Z + q.Z} }
-func (p Point) sub(q Point) Point     { return Point{p.X - q.X, p.Y - q.Y, p.Z - q.Z} }
-func (p Point) scale(s float64) Point { return Point{s * p.X, s * p.Y, s * p.Z} }
-func (p Point) Dot(q Point) float64   { return p.X*q.X + p.Y*q.Y + p.Z*q.Z }
-func (p Point) Norm() float64         { return math.Sqrt(p.Dot(p)) }
+func (p Point) add(q Point) Point { return Point{p.X + q.X, p.Y + q.Y, p.Z + q.Z} }
+func (p Point) sub(q Point) Point { return Point{p.X - q.X, p.Y - q.Y, p.Z - q.Z} }
+
+// Scale is s·p.
+func (p Point) Scale(s float64) Point { return Point{s * p.X, s * p.Y, s * p.Z} }
+
+// Dot is the scalar product.
+func (p Point) Dot(q Point) float64 { return p.X*q.X + p.Y*q.Y + p.Z*q.Z }
+
+// Norm is the length |p|.
+func (p Point) Norm() float64 { return math.Sqrt(p.Dot(p)) }
 func (p Point) cross(q Point) Point {
 	return Point{p.Y*q.Z - p.Z*q.Y, p.Z*q.X - p.X*q.Z, p.X*q.Y - p.Y*q.X}
 }
-func (p Point) unit() Point  { return p.scale(1 / p.Norm()) }
+func (p Point) unit() Point  { return p.Scale(1 / p.Norm()) }
 func (p Point) finite() bool { return finite(p.X) && finite(p.Y) && finite(p.Z) }
 func finite(v float64) bool  { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 func deg(d float64) float64  { return d * math.Pi / 180 }
@@ -41,11 +47,11 @@ func arc(a, m, b Point, n int) []Point {
 	// circumcentre of the triangle a, m, b
 	u, v := m.sub(a), b.sub(a)
 	w := u.cross(v)
-	c := a.add(v.cross(w).scale(u.Dot(u)).add(w.cross(u).scale(v.Dot(v))).scale(1 / (2 * w.Dot(w))))
+	c := a.add(v.cross(w).Scale(u.Dot(u)).add(w.cross(u).Scale(v.Dot(v))).Scale(1 / (2 * w.Dot(w))))
 	axis := w.unit()
 	rot := func(p Point, ang float64) Point { // Rodrigues' rotation of p − c about axis
 		r := p.sub(c)
-		return c.add(r.scale(math.Cos(ang)).add(axis.cross(r).scale(math.Sin(ang))))
+		return c.add(r.Scale(math.Cos(ang)).add(axis.cross(r).Scale(math.Sin(ang))))
 	}
 	angle := func(p, q Point) float64 {
 		r, s := p.sub(c), q.sub(c)
