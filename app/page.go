@@ -92,6 +92,8 @@ type Page struct {
 	allCols    bool // the table shows every column, not only the main ones
 	resultsRev int
 	figBufs    []buffer // the figures' SVG, made into Blobs as they are shown
+
+	scalp scalpState // clickable scalp maps (scalp.go)
 }
 
 // Progressive drawing. The page is drawn a step at a time after start-up,
@@ -478,7 +480,8 @@ func (p *Page) onDrop(ctx goapp.Context, e goapp.Event) {
 }
 
 // takeFiles sorts what the user gave: a recipe (.json with analyses), an
-// events table, sidecars (channels.tsv, .json), and the recording.
+// events table, sidecars (channels.tsv, electrodes.tsv, .json such as a
+// coordsystem.json), and the recording.
 func (p *Page) takeFiles(fs []fileRef) {
 	if len(fs) == 0 {
 		return
@@ -495,7 +498,7 @@ func (p *Page) takeFiles(fs []fileRef) {
 			events = &f
 		case strings.HasSuffix(low, ".json"):
 			jsons = append(jsons, f)
-		case strings.HasSuffix(low, "channels.tsv"):
+		case strings.HasSuffix(low, "channels.tsv"), strings.HasSuffix(low, "electrodes.tsv"):
 			extras = append(extras, f)
 		default:
 			data = &f

@@ -34,7 +34,8 @@ const sensorRecipe = `{
 
 var (
 	plotAreaRE = regexp.MustCompile(`id="plot-area"[^>]*data-left="([^"]+)" data-top="([^"]+)" data-width="([^"]+)" data-height="([^"]+)" data-xmin="([^"]+)" data-xmax="([^"]+)" data-ymin="([^"]+)" data-ymax="([^"]+)"`)
-	rectRE     = regexp.MustCompile(`<rect x="([^"]+)" y="([^"]+)" width="([^"]+)" height="([^"]+)" fill="(#[0-9a-f]{6})"/>`)
+	bandRE     = regexp.MustCompile(`<path fill="(#[0-9a-f]{6})" d="([^"]+)"/>`)
+	cellRE     = regexp.MustCompile(`M([-0-9.]+) ([-0-9.]+)h([-0-9.]+)v([-0-9.]+)h[-0-9.]+z`)
 )
 
 // electrodeAt returns the page position (viewBox units) of a channel's
@@ -126,35 +127,36 @@ func TestRunDemoSensorViews(t *testing.T) {
 	// The planted effect is at Pz (core/demo): the cells of the top colour
 	// band of the map lie around Pz's position on the projection.
 	g := geomOf(t, scalp)
-	// the band of the cell under the Pz marker, and the centre of all the
-	// cells of that band
-	var sx, sy, sw float64
-	var top string
+	// the band of the cell under the Pz marker (each band is one path of
+	// cells "Mx yhWvHh−Wz"), and the centre of all the cells of that band
+	type cell struct{ x, y, w, h float64 }
+	bands := map[string][]cell{}
+	for _, m := range bandRE.FindAllStringSubmatch(scalp, -1) {
+		for _, c := range cellRE.FindAllStringSubmatch(m[2], -1) {
+			var v [4]float64
+			for k := range v {
+				v[k], _ = strconv.ParseFloat(c[k+1], 64)
+			}
+			bands[m[1]] = append(bands[m[1]], cell{v[0], v[1], v[2], v[3]})
+		}
+	}
 	px, py := electrodeAt(t, scalp, "Pz")
-	best := math.Inf(1)
-	for _, m := range rectRE.FindAllStringSubmatch(scalp, -1) {
-		x, _ := strconv.ParseFloat(m[1], 64)
-		y, _ := strconv.ParseFloat(m[2], 64)
-		w, _ := strconv.ParseFloat(m[3], 64)
-		h, _ := strconv.ParseFloat(m[4], 64)
-		if px >= x && px <= x+w && py >= y && py <= y+h && w*h < best {
-			best, top = w*h, m[5]
+	top := ""
+	for colour, cs := range bands {
+		for _, c := range cs {
+			if px >= c.x && px < c.x+c.w-0.3 && py >= c.y && py < c.y+c.h-0.3 {
+				top = colour
+			}
 		}
 	}
 	if top == "" {
 		t.Fatal("no map cell under Pz")
 	}
-	for _, m := range rectRE.FindAllStringSubmatch(scalp, -1) {
-		if m[5] != top {
-			continue
-		}
-		x, _ := strconv.ParseFloat(m[1], 64)
-		y, _ := strconv.ParseFloat(m[2], 64)
-		w, _ := strconv.ParseFloat(m[3], 64)
-		h, _ := strconv.ParseFloat(m[4], 64)
-		sx += (x + w/2) * w * h
-		sy += (y + h/2) * w * h
-		sw += w * h
+	var sx, sy, sw float64
+	for _, c := range bands[top] {
+		sx += (c.x + c.w/2) * c.w * c.h
+		sy += (c.y + c.h/2) * c.w * c.h
+		sw += c.w * c.h
 	}
 	cx, cy := g.toPlane(sx/sw, sy/sw)
 	pz, _, _ := sensors.Standard("Pz")

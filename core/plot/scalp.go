@@ -240,13 +240,16 @@ func Scalp(sensors []Sensor, opt ScalpOptions) (string, Geometry) {
 			b := int(math.Floor((v + lim) / (2 * lim) * scalpBands))
 			return max(0, min(scalpBands-1, b))
 		}
-		d.raw(`<g shape-rendering="crispEdges">` + "\n")
+		// one path per band, a rectangle per run of equal band in a row (16
+		// elements rather than one per run keeps the page's parsing short)
+		runs := make([]strings.Builder, scalpBands)
 		for i := 0; i < n; i++ {
 			yc := rf - (float64(i)+0.5)*cell // page-plane y of the row centre
-			half := math.Sqrt(math.Max(0, rf*rf-math.Min(rf*rf, (math.Abs(yc)-cell/2)*(math.Abs(yc)-cell/2))))
 			if math.Abs(yc)-cell/2 > rf {
 				continue
 			}
+			e := math.Max(0, math.Abs(yc)-cell/2)
+			half := math.Sqrt(math.Max(0, rf*rf-e*e))
 			j0 := max(0, int(math.Floor((rf-half)/cell)))
 			j1 := min(n, int(math.Ceil((rf+half)/cell)))
 			run, runStart := -2, j0
@@ -255,8 +258,8 @@ func Scalp(sensors []Sensor, opt ScalpOptions) (string, Geometry) {
 					x0 := cx + (-rf+float64(runStart)*cell)*k
 					x1 := cx + (-rf+float64(j)*cell)*k
 					y0 := cy - (yc+cell/2)*k
-					d.raw(`<rect x="`, num(x0), `" y="`, num(y0), `" width="`, num(x1-x0+0.3), `" height="`, num(cell*k+0.3),
-						`" fill="`, Tidal.Hex((float64(run)+0.5)/scalpBands), `"/>`+"\n")
+					b := &runs[run]
+					b.WriteString("M" + num(x0) + " " + num(y0) + "h" + num(x1-x0+0.3) + "v" + num(cell*k+0.3) + "h" + num(-(x1 - x0 + 0.3)) + "z")
 				}
 			}
 			for j := j0; j < j1; j++ {
@@ -268,6 +271,12 @@ func Scalp(sensors []Sensor, opt ScalpOptions) (string, Geometry) {
 				}
 			}
 			flush(j1)
+		}
+		d.raw(`<g shape-rendering="crispEdges">` + "\n")
+		for b := range runs {
+			if runs[b].Len() > 0 {
+				d.raw(`<path fill="`, Tidal.Hex((float64(b)+0.5)/scalpBands), `" d="`, runs[b].String(), `"/>`+"\n")
+			}
 		}
 		d.raw("</g>\n")
 		// white out what lies outside the disc (even-odd: a square with the

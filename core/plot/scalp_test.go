@@ -62,7 +62,10 @@ func TestScalpMarks(t *testing.T) {
 	if !strings.Contains(svg, `fill="`+Tidal.Hex((scalpBands-0.5)/scalpBands)+`"`) {
 		t.Error("no cell in the top band")
 	}
-	if strings.Contains(svg, `fill="`+Tidal.Hex(0.5/scalpBands)+`"/>`) {
+	if !strings.Contains(svg, `<path fill="`+Tidal.Hex((scalpBands-0.5)/scalpBands)+`" d="M`) {
+		t.Error("the top band is not drawn as a path of cells")
+	}
+	if strings.Contains(svg, `<path fill="`+Tidal.Hex(0.5/scalpBands)+`" d="`) {
 		t.Error("a cell in the bottom band, though no value is that low")
 	}
 	if g.XMin != -g.XMax || g.YMin != -g.YMax || g.XMax < 1 {
