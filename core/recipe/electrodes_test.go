@@ -129,3 +129,50 @@ func TestElectrodesBeside(t *testing.T) {
 		t.Errorf("one point: %v", err)
 	}
 }
+
+// Envelope networks: without a test the strongest k pairs (k = the number
+// of channels, in the title); across bands, arrows from band A to band B.
+func TestNetworkFigures(t *testing.T) {
+	e := synthTrials(12, 0.8, 2)
+	for i, n := range []string{"Fz", "Cz", "Pz", "Oz"} {
+		e.Channels[i].Name = n
+	}
+	rc := `{"spectral": {"low": 4, "high": 30, "steps": 6, "cycles": [3, 6]},
+	  "analyses": [
+	    {"id": "same", "type": "envelope", "channels": "*", "freq": [16, 24]},
+	    {"id": "cross", "type": "envelope", "channels": "*", "freq": [5, 7], "targetFreq": [16, 24], "correction": "fdr"}]}`
+	_, res := runFig(t, rc, &Dataset{Name: "synth", Epochs: e}, 1)
+	get := func(name string) string {
+		for _, f := range res.Figures {
+			if f.Name == name {
+				return f.SVG
+			}
+		}
+		t.Fatalf("no figure %s in %v", name, figureNames(res))
+		return ""
+	}
+	same := get("same_network")
+	if !strings.Contains(same, "the 4 strongest pairs") || !strings.Contains(same, "the 4 strongest of 6 pairs (no test in the recipe)") {
+		t.Error("the untested network does not say it shows the 4 strongest pairs")
+	}
+	if n := strings.Count(same, ": r = "); n != 4 {
+		t.Errorf("%d lines drawn, want 4", n)
+	}
+	cross := get("cross_network")
+	if !strings.Contains(cross, "arrows: ") || !strings.Contains(cross, "q ≤ 0.05 (fdr)") {
+		t.Error("the cross-frequency network has no arrow legend or no test named")
+	}
+	// every arrow drawn is a row with q ≤ 0.05
+	passed := 0
+	for _, r := range res.Rows {
+		if r.Analysis == "cross" && significant(r, "q") {
+			passed++
+			if !strings.Contains(cross, r.Seed+" → "+r.Target+": r = ") {
+				t.Errorf("no arrow %s → %s", r.Seed, r.Target)
+			}
+		}
+	}
+	if n := strings.Count(cross, " → ") - strings.Count(cross, "arrows: "); n != passed {
+		t.Errorf("%d arrows, %d rows pass", n, passed)
+	}
+}
