@@ -332,6 +332,7 @@ func (p *Page) finishRun(rep wire.Reply, bufs []buffer) {
 	p.table, p.sorted, p.cols = t, nil, nil
 	p.sortCol, p.sortDesc = -1, false
 	p.figures = rep.Figures
+	p.scalp = scalpState{} // scalp.go
 	p.warnings = rep.Warnings
 	p.status = fmt.Sprintf("Done: %d results in %.1f s.", len(t.Rows), elapsed/1000)
 	p.shownRows, p.shownFigs = 0, 0

@@ -2,6 +2,7 @@ package app
 
 import (
 	"fmt"
+	"html"
 	"strings"
 
 	goapp "github.com/maxence-charriere/go-app/v9/pkg/app"
@@ -17,10 +18,11 @@ import (
 // in the form. The next run uses it, so a user can walk the head one seed
 // at a time.
 
-// scalpState is what the page keeps for its scalp maps.
+// scalpState is what the page keeps for its scalp maps; a new run's
+// results start it afresh.
 type scalpState struct {
-	rev  int               // the results revision the texts belong to
 	svgs map[string]string // figure name → SVG text, read from its buffer once
+	open map[string]bool   // figures whose SVG is in the page
 	msg  string            // what the last click did
 }
 
@@ -28,15 +30,11 @@ type scalpState struct {
 func isScalp(f wire.Figure) bool { return strings.Contains(f.Name, "_scalp_") }
 
 // scalpSVG returns the SVG text of figure i, read from its buffer the
-// first time it is asked for after a run.
+// first time it is asked for.
 func (p *Page) scalpSVG(i int) string {
 	s := &p.scalp
-	if s.rev != p.resultsRev || s.svgs == nil {
-		// a new run (or redrawn results): texts of older runs go
-		if s.svgs == nil || !sameFigures(s.svgs, p.figures) {
-			s.svgs, s.msg = map[string]string{}, ""
-		}
-		s.rev = p.resultsRev
+	if s.svgs == nil {
+		s.svgs = map[string]string{}
 	}
 	name := p.figures[i].Name
 	if v, ok := s.svgs[name]; ok {
@@ -50,22 +48,6 @@ func (p *Page) scalpSVG(i int) string {
 	return v
 }
 
-func sameFigures(m map[string]string, figs []wire.Figure) bool {
-	for name := range m {
-		found := false
-		for _, f := range figs {
-			if f.Name == name {
-				found = true
-				break
-			}
-		}
-		if !found {
-			return false
-		}
-	}
-	return true
-}
-
 // scalpFigure draws figure i when it is a scalp map; ok is false for
 // every other figure.
 func (p *Page) scalpFigure(i int) (goapp.UI, bool) {
@@ -73,20 +55,47 @@ func (p *Page) scalpFigure(i int) (goapp.UI, bool) {
 	if !isScalp(f) {
 		return nil, false
 	}
-	svg := p.scalpSVG(i)
 	id, _, _ := strings.Cut(f.Name, "_scalp_")
 	hint := fmt.Sprintf("Click an electrode, or Tab to it and press Enter, to make it the seed channel of %s; the next run uses it.", id)
-	box := goapp.Div().Class("svgbox scalp-view").ID("scalp-"+f.Name).DataSet("analysis", id).
+	// The SVG goes into the box when the figure is first opened (as the
+	// other figures' images load when they are opened), written there
+	// directly rather than drawn by go-app: parsing a map's cells is then
+	// neither part of drawing the results nor of redrawing them. go-app
+	// leaves the box's content alone, since the box has no children of its
+	// own.
+	box := goapp.Div().Class("svgbox scalp-view").ID(scalpBoxID(f.Name)).DataSet("analysis", id).
 		OnClick(p.onScalpClick).OnKeyDown(p.onScalpKey)
-	if svg != "" {
-		box = box.Body(goapp.Raw(svg))
-	}
-	return goapp.Details().Class("figure").Body(
+	return goapp.Details().Class("figure").OnToggle(p.onScalpToggle(f.Name), f.Name).Body(
 		goapp.Summary().Text(f.Title),
 		goapp.P().Class("hint").Text(hint),
 		box,
-		goapp.If(p.scalp.msg != "", goapp.P().Class("okay scalp-msg").Aria("live", "polite").Text(p.scalp.msg)),
+		goapp.P().ID(scalpBoxID(f.Name)+"-msg").Class("okay scalp-msg").Aria("live", "polite"),
 	), true
+}
+
+func scalpBoxID(name string) string { return "scalp-" + name }
+
+// onScalpToggle puts a scalp map's SVG into the page when it is first
+// opened.
+func (p *Page) onScalpToggle(name string) goapp.EventHandler {
+	return func(ctx goapp.Context, e goapp.Event) {
+		ctx.PreventUpdate()
+		if !ctx.JSSrc().Get("open").Bool() || p.scalp.open[name] {
+			return
+		}
+		for i, f := range p.figures {
+			if f.Name == name {
+				if svg := p.scalpSVG(i); svg != "" {
+					setBodyHTML(scalpBoxID(name), svg)
+					if p.scalp.open == nil {
+						p.scalp.open = map[string]bool{}
+					}
+					p.scalp.open[name] = true
+				}
+				return
+			}
+		}
+	}
 }
 
 // scalpTarget finds the electrode an event happened on: its channel and
@@ -109,7 +118,16 @@ func (p *Page) onScalpClick(ctx goapp.Context, e goapp.Event) {
 		ctx.PreventUpdate()
 		return
 	}
-	p.setSeed(id, ch)
+	p.setSeed(id, ch, scalpFigureOf(e))
+}
+
+// scalpFigureOf is the id of the scalp box an event happened in.
+func scalpFigureOf(e goapp.Event) string {
+	b := e.Get("target").Call("closest", ".scalp-view")
+	if !b.Truthy() {
+		return ""
+	}
+	return b.Get("id").String()
 }
 
 func (p *Page) onScalpKey(ctx goapp.Context, e goapp.Event) {
@@ -121,15 +139,17 @@ func (p *Page) onScalpKey(ctx goapp.Context, e goapp.Event) {
 			return
 		}
 		e.PreventDefault()
-		p.setSeed(id, ch)
+		p.setSeed(id, ch, scalpFigureOf(e))
 	default:
 		ctx.PreventUpdate()
 	}
 }
 
 // setSeed makes channel the seed of the analysis whose id is id, opens
-// that analysis in the form and says so.
-func (p *Page) setSeed(id, channel string) {
+// that analysis in the form, and says so under the map (box is the map's
+// element id).
+func (p *Page) setSeed(id, channel, box string) {
+	msg := fmt.Sprintf("No analysis %s in the form, so the seed was not changed.", id)
 	for i := 0; i < p.form.Analyses; i++ {
 		pre := fmt.Sprintf("analyses.%d.", i)
 		if p.form.get(pre+"id") != id {
@@ -137,13 +157,17 @@ func (p *Page) setSeed(id, channel string) {
 		}
 		p.form.set(pre+"seed.channel", channel)
 		p.expanded = i
-		p.scalp.msg = fmt.Sprintf("The seed channel of %s (analysis %d) is now %s. Run again to see its map.", id, i+1, channel)
-		p.resultsRev++
-		p.scalp.rev = p.resultsRev
+		msg = fmt.Sprintf("The seed channel of %s (analysis %d) is now %s. Run again to see its map.", id, i+1, channel)
 		p.validate()
-		return
+		break
 	}
-	p.scalp.msg = fmt.Sprintf("No analysis %s in the form, so the seed was not changed.", id)
-	p.resultsRev++
-	p.scalp.rev = p.resultsRev
+	p.scalp.msg = msg
+	if box != "" {
+		setBodyHTML(box+"-msg", html.EscapeString(msg))
+	}
+	// the handler redraws the results it belongs to; the form is the
+	// page's, so the page is redrawn
+	if p.ctx != nil {
+		p.ctx.Dispatch(func(goapp.Context) {})
+	}
 }

@@ -657,7 +657,7 @@ func TestBrowser(t *testing.T) {
 		}
 		// every figure is shown and every download is offered as a Blob
 		s, err := chromedp.Run(b.ctx, chromedp.Evaluate[string](`JSON.stringify({
-			figs: document.querySelectorAll(".figure img.svgimg").length + document.querySelectorAll(".figure .scalp-view > svg").length,
+			figs: document.querySelectorAll(".figure img.svgimg").length + document.querySelectorAll(".figure .scalp-view").length,
 			links: [...document.querySelectorAll("a[download]")].filter(a => a.href.startsWith("blob:")).map(a => a.getAttribute("download"))})`))
 		if err != nil {
 			t.Fatal(err)
@@ -729,9 +729,6 @@ func TestBrowser(t *testing.T) {
 	// the map of that seed.
 	t.Run("scalp seed", func(t *testing.T) {
 		const box = "#scalp-beta-to-delta_scalp_C4"
-		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`!!document.querySelector(`+strconv.Quote(box+` [data-channel="Pz"]`)+`)`, chromedp.WithPollingTimeout(10*time.Second))); err != nil {
-			t.Fatalf("no clickable scalp map: %v", err)
-		}
 		seed := func(want string) {
 			t.Helper()
 			expr := `(document.getElementById("f-analyses-0-seed-channel") || {}).value === ` + strconv.Quote(want)
@@ -740,9 +737,13 @@ func TestBrowser(t *testing.T) {
 			}
 		}
 		seed("C4")
-		// open the figure and click Pz's marker where it is drawn
+		// open the figure (its SVG goes into the page then) and click Pz's
+		// marker where it is drawn
 		if _, err := chromedp.Run(b.ctx, chromedp.Evaluate[bool](`(() => { const d = document.querySelector(`+strconv.Quote(box)+`).closest("details"); d.open = true; return true; })()`)); err != nil {
 			t.Fatal(err)
+		}
+		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`!!document.querySelector(`+strconv.Quote(box+` [data-channel="Pz"]`)+`)`, chromedp.WithPollingTimeout(10*time.Second))); err != nil {
+			t.Fatalf("no clickable scalp map: %v", err)
 		}
 		if err := chromedp.Do(b.ctx, chromedp.Click(chromedp.CSS(box+` [data-channel="Pz"] circle`), chromedp.NodeVisible)); err != nil {
 			t.Fatal(err)

@@ -23,7 +23,8 @@ type Sensor struct {
 // sensors' values); Limit sets the colour limits ±Limit (zero → max
 // |Value|); ValueName names the value ("r"); MarkNote says what a filled
 // marker means ("q ≤ 0.05, fdr") and SeedNote what the diamond is
-// ("seed C4"); Analysis and SeedKey go into data- attributes so that a
+// ("seed C4"); Analysis, when set, goes into a data-analysis attribute of
+// every electrode (with data-channel, tabindex and role="button") so that a
 // page can act on a click on an electrode.
 type ScalpOptions struct {
 	Frame
@@ -43,10 +44,11 @@ const scalpBands = 16
 // scalpCells is the number of cells across the coloured disc.
 const scalpCells = 128
 
-// Head drawing. The outline is the circle at radius headR(...) ≥ 1 (the
-// nasion–ear plane); the nose is a blunt wedge at the top and the ears
-// are short brackets on the sides. The colour field fills the disc up to
-// a tenth beyond the outermost electrode, never past the outline.
+// Head drawing. The outline is the circle at radius r ≥ 1 (the nasion–ear
+// plane, or a little beyond the outermost sensor when a sensor lies
+// lower); the nose is a blunt wedge at the top and the ears are short
+// brackets on the sides. The colour field fills the disc up to a tenth
+// beyond the outermost sensor, never past the outline.
 type head struct {
 	g      Geometry
 	r      float64 // outline radius in page-plane units
@@ -91,7 +93,7 @@ func (hd head) scale() float64 { return hd.g.Width / (hd.g.XMax - hd.g.XMin) }
 
 func (hd head) centre() (float64, float64) { return hd.g.ToPixel(0, 0) }
 
-// outline draws the head outline, nose and ears over the field.
+// headOutline draws the head outline, nose and ears over the field.
 func (d *svgDoc) headOutline(hd head) {
 	cx, cy := hd.centre()
 	k := hd.scale()
@@ -294,7 +296,6 @@ func Scalp(sensors []Sensor, opt ScalpOptions) (string, Geometry) {
 	R := hd.r * k
 	bg := g
 	bg.Top, bg.Height = cy-R, 2*R
-	bg.Width = (g.Left + g.Width) - g.Left
 	d.colourBar(l, bg, bar)
 	d.markerLegend(l, g, opt.MarkNote, opt.SeedNote, hasSeed(sensors), hasMarked(sensors))
 	return d.finish(), g
