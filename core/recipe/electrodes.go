@@ -22,9 +22,11 @@ import (
 // EEGLAB-HJ, 4DBti, KitYokogawa, ChietiItab; BIDS appendix on coordinate
 // systems, from memory) are turned to x right, y anterior.
 type Electrodes struct {
-	File  string // the electrodes.tsv, or "" for the built-in positions
-	Units string // from coordsystem.json, or ""
-	pos   map[string]sensors.Point
+	File   string // the electrodes.tsv, or "" for the built-in positions
+	Units  string // from coordsystem.json, or ""
+	System string // the coordinate system's name from coordsystem.json, or ""
+	placed int    // electrodes with a position in the file
+	pos    map[string]sensors.Point
 }
 
 // alsSystems are BIDS coordinate systems with x anterior, y left, z up.
@@ -45,7 +47,7 @@ func ReadElectrodes(f format.File, coord *format.File) (*Electrodes, error) {
 		if err != nil {
 			return nil, err
 		}
-		el.Units = cs.Units
+		el.Units, el.System = cs.Units, cs.System
 		als = alsSystems[strings.ToLower(cs.System)]
 	}
 	for _, e := range es {
@@ -61,6 +63,7 @@ func ReadElectrodes(f format.File, coord *format.File) (*Electrodes, error) {
 				Err: fmt.Errorf("electrode %q is at the coordinate origin, so it has no direction from the head's centre", e.Name)}
 		}
 		el.pos[strings.ToLower(e.Name)] = p
+		el.placed++
 	}
 	return el, nil
 }
@@ -102,7 +105,14 @@ func (ds *Dataset) AttachElectrodes(f format.File, coord *format.File) error {
 		return err
 	}
 	ds.Electrodes = el
-	ds.Notes = append(ds.Notes, fmt.Sprintf("electrode positions from %s", f.Name))
+	note := fmt.Sprintf("electrode positions from %s (%d placed", f.Name, el.placed)
+	if el.System != "" {
+		note += ", " + el.System
+	}
+	if el.Units != "" {
+		note += ", " + el.Units
+	}
+	ds.Notes = append(ds.Notes, note+"); only their directions from the origin are used")
 	return nil
 }
 

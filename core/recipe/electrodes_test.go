@@ -98,6 +98,9 @@ func TestElectrodesBeside(t *testing.T) {
 	if el == nil || el.File != "sub-01_electrodes.tsv" || el.Units != "m" {
 		t.Fatalf("electrodes %+v", el)
 	}
+	if want := "electrode positions from sub-01_electrodes.tsv (3 placed, CTF, m); only their directions from the origin are used"; !slices.Contains(ds.Notes, want) {
+		t.Errorf("notes %q lack %q", ds.Notes, want)
+	}
 	for _, c := range []struct {
 		name string
 		want sensors.Point
