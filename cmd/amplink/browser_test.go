@@ -729,6 +729,7 @@ func TestBrowser(t *testing.T) {
 	// the map of that seed.
 	t.Run("scalp seed", func(t *testing.T) {
 		const box = "#scalp-beta-to-delta_scalp_C4"
+		b.mark(t, "scalp-open")
 		seed := func(want string) {
 			t.Helper()
 			expr := `(document.getElementById("f-analyses-0-seed-channel") || {}).value === ` + strconv.Quote(want)
@@ -745,6 +746,7 @@ func TestBrowser(t *testing.T) {
 		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`!!document.querySelector(`+strconv.Quote(box+` [data-channel="Pz"]`)+`)`, chromedp.WithPollingTimeout(10*time.Second))); err != nil {
 			t.Fatalf("no clickable scalp map: %v", err)
 		}
+		b.mark(t, "scalp-click")
 		if err := chromedp.Do(b.ctx, chromedp.Click(chromedp.CSS(box+` [data-channel="Pz"] circle`), chromedp.NodeVisible)); err != nil {
 			t.Fatal(err)
 		}
@@ -753,6 +755,7 @@ func TestBrowser(t *testing.T) {
 			t.Errorf("message %q", msg)
 		}
 		// keyboard: focus Cz and press Enter
+		b.mark(t, "scalp-enter")
 		if _, err := chromedp.Run(b.ctx, chromedp.Evaluate[bool](`(() => { const g = document.querySelector(`+strconv.Quote(box+` [data-channel="Cz"]`)+`); g.focus(); return document.activeElement === g; })()`)); err != nil {
 			t.Fatal(err)
 		}
