@@ -93,6 +93,8 @@ type Page struct {
 	allCols    bool // the table shows every column, not only the main ones
 	resultsRev int
 	figBufs    []buffer // the figures' SVG, made into Blobs as they are shown
+
+	scalp scalpState // clickable scalp maps (scalp.go)
 }
 
 // Progressive drawing. The page is drawn a step at a time after start-up,
@@ -331,6 +333,7 @@ func (p *Page) finishRun(rep wire.Reply, bufs []buffer) {
 	p.table, p.sorted, p.cols = t, nil, nil
 	p.sortCol, p.sortDesc = -1, false
 	p.figures = rep.Figures
+	p.scalp = scalpState{} // scalp.go
 	p.warnings = rep.Warnings
 	p.status = fmt.Sprintf("Done: %d results in %.1f s.", len(t.Rows), elapsed/1000)
 	p.shownRows, p.shownFigs = 0, 0
@@ -479,7 +482,8 @@ func (p *Page) onDrop(ctx goapp.Context, e goapp.Event) {
 }
 
 // takeFiles sorts what the user gave: a recipe (.json with analyses), an
-// events table, sidecars (channels.tsv, .json), and the recording.
+// events table, sidecars (channels.tsv, electrodes.tsv, .json such as a
+// coordsystem.json), and the recording.
 func (p *Page) takeFiles(fs []fileRef) {
 	if len(fs) == 0 {
 		return
@@ -496,7 +500,7 @@ func (p *Page) takeFiles(fs []fileRef) {
 			events = &f
 		case strings.HasSuffix(low, ".json"):
 			jsons = append(jsons, f)
-		case strings.HasSuffix(low, "channels.tsv"):
+		case strings.HasSuffix(low, "channels.tsv"), strings.HasSuffix(low, "electrodes.tsv"):
 			extras = append(extras, f)
 		default:
 			data = &f

@@ -134,7 +134,7 @@ func (p *Page) renderLoad() goapp.UI {
 		goapp.Div().Class("dropzone").OnDragOver(p.onDragOver).OnDrop(p.onDrop).Body(
 			goapp.Div().Class("row").Body(
 				goapp.Div().Class("field").Body(
-					goapp.Label().For("file-input").Text("Recording (EDF, BDF, CSV/TSV, float32 epochs, WAV, MP3), with its events.tsv, channels.tsv or a recipe .json; or drop them here"),
+					goapp.Label().For("file-input").Text("Recording (EDF, BDF, CSV/TSV, float32 epochs, WAV, MP3), with its events.tsv, channels.tsv, electrodes.tsv or a recipe .json; or drop them here"),
 					goapp.Input().Type("file").ID("file-input").Multiple(true).OnChange(p.onFiles),
 				),
 				goapp.Button().ID("load-demo").Class("quiet").Text("Load the demo").OnClick(p.onLoadDemo),
@@ -468,6 +468,9 @@ func (p *Page) renderResults() goapp.UI {
 			}),
 		)),
 		goapp.Range(figs).Slice(func(i int) goapp.UI {
+			if v, ok := p.scalpFigure(i); ok { // scalp.go: clickable electrodes
+				return v
+			}
 			f := figs[i]
 			// an <img> of the figure's Blob: the SVG never passes through
 			// the page's Go code, and the browser decodes it off the script

@@ -658,7 +658,7 @@ func TestBrowser(t *testing.T) {
 		}
 		// every figure is shown and every download is offered as a Blob
 		s, err := chromedp.Run(b.ctx, chromedp.Evaluate[string](`JSON.stringify({
-			figs: document.querySelectorAll(".figure img.svgimg").length,
+			figs: document.querySelectorAll(".figure img.svgimg").length + document.querySelectorAll(".figure .scalp-view").length,
 			links: [...document.querySelectorAll("a[download]")].filter(a => a.href.startsWith("blob:")).map(a => a.getAttribute("download"))})`))
 		if err != nil {
 			t.Fatal(err)
@@ -723,6 +723,57 @@ func TestBrowser(t *testing.T) {
 			}
 			prev = v
 		}
+	})
+
+	// On the seed-to-all scalp map, a click on an electrode (or Enter on a
+	// focused one) makes it the analysis's seed channel; the next run draws
+	// the map of that seed.
+	t.Run("scalp seed", func(t *testing.T) {
+		const box = "#scalp-beta-to-delta_scalp_C4"
+		b.mark(t, "scalp-open")
+		seed := func(want string) {
+			t.Helper()
+			expr := `(document.getElementById("f-analyses-0-seed-channel") || {}).value === ` + strconv.Quote(want)
+			if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](expr, chromedp.WithPollingTimeout(10*time.Second))); err != nil {
+				t.Fatalf("the form's seed channel is %q, want %q (%v)", b.formValues(t)["f-analyses-0-seed-channel"], want, err)
+			}
+		}
+		seed("C4")
+		// open the figure (its SVG goes into the page then) and click Pz's
+		// marker where it is drawn
+		if _, err := chromedp.Run(b.ctx, chromedp.Evaluate[bool](`(() => { const d = document.querySelector(`+strconv.Quote(box)+`).closest("details"); d.open = true; return true; })()`)); err != nil {
+			t.Fatal(err)
+		}
+		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`!!document.querySelector(`+strconv.Quote(box+` [data-channel="Pz"]`)+`)`, chromedp.WithPollingTimeout(10*time.Second))); err != nil {
+			t.Fatalf("no clickable scalp map: %v", err)
+		}
+		b.mark(t, "scalp-click")
+		if err := chromedp.Do(b.ctx, chromedp.Click(chromedp.CSS(box+` [data-channel="Pz"] circle`), chromedp.NodeVisible)); err != nil {
+			t.Fatal(err)
+		}
+		seed("Pz")
+		if msg := b.text(t, ".scalp-msg"); !strings.Contains(msg, "is now Pz") {
+			t.Errorf("message %q", msg)
+		}
+		// keyboard: focus Cz and press Enter
+		b.mark(t, "scalp-enter")
+		if _, err := chromedp.Run(b.ctx, chromedp.Evaluate[bool](`(() => { const g = document.querySelector(`+strconv.Quote(box+` [data-channel="Cz"]`)+`); g.focus(); return document.activeElement === g; })()`)); err != nil {
+			t.Fatal(err)
+		}
+		if err := chromedp.Do(b.ctx, chromedp.KeyEvent("\r")); err != nil {
+			t.Fatal(err)
+		}
+		seed("Cz")
+		b.runAnalysis(t, 180*time.Second)
+		s, err := chromedp.Run(b.ctx, chromedp.Evaluate[string](`JSON.stringify([...document.querySelectorAll("a[download]")].map(a => a.getAttribute("download")))`))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !strings.Contains(s, `"beta-to-delta_scalp_Cz.svg"`) || strings.Contains(s, `"beta-to-delta_scalp_C4.svg"`) {
+			t.Errorf("after re-seeding at Cz the figures are %s", s)
+		}
+		b.setField(t, "f-analyses-0-seed-channel", "C4")
+		seed("C4")
 	})
 
 	t.Run("identity", func(t *testing.T) {

@@ -57,6 +57,7 @@ func cmdRun(stdout, stderr io.Writer, args []string) (err error) {
 	outDir := fs.String("out", "amplink-out", "output directory")
 	eventsPath := fs.String("events", "", "events file (BIDS events.tsv) for continuous input")
 	trialsPath := fs.String("trials", "", "per-trial values (CSV trial,<name>...) for covariates and conditions")
+	electrodesPath := fs.String("electrodes", "", "electrode positions (BIDS electrodes.tsv), replacing the built-in 10-10 positions")
 	workers := fs.Int("workers", 0, "parallel workers (0: one per core)")
 	groupsPath := fs.String("groups", "", "with several recordings: a CSV recording,group naming two groups to compare")
 	level := fs.Float64("level", 0.95, "confidence level of the group intervals")
@@ -118,10 +119,15 @@ func cmdRun(stdout, stderr io.Writer, args []string) (err error) {
 			return err
 		}
 	}
+	elec, err := openElectrodes(*electrodesPath) // electrodes.go
+	if err != nil {
+		return err
+	}
+	defer elec.close()
 	ctx := context.Background()
 	var all *report.Results
 	for _, path := range files {
-		res, err := runOne(ctx, stderr, rcp, *recipePath, path, events, trials, *trialsPath, *workers, len(files) > 1)
+		res, err := runOne(ctx, stderr, rcp, *recipePath, path, events, trials, *trialsPath, elec, *workers, len(files) > 1)
 		if err != nil {
 			if errors.Is(err, data.ErrTooLarge) {
 				err = fmt.Errorf("%w; --max-memory %s is the budget, raise it to analyse this", err, *maxMemory)
@@ -169,7 +175,7 @@ func cmdRun(stdout, stderr io.Writer, args []string) (err error) {
 	return nil
 }
 
-func runOne(ctx context.Context, stderr io.Writer, rcp *recipe.Recipe, recipePath, path string, events *format.File, trials *csv.Table, trialsName string, workers int, prefix bool) (*report.Results, error) {
+func runOne(ctx context.Context, stderr io.Writer, rcp *recipe.Recipe, recipePath, path string, events *format.File, trials *csv.Table, trialsName string, elec *electrodeFiles, workers int, prefix bool) (*report.Results, error) {
 	f, osf, err := openFile(path)
 	if err != nil {
 		return nil, err
@@ -185,6 +191,9 @@ func runOne(ctx context.Context, stderr io.Writer, rcp *recipe.Recipe, recipePat
 		if err := ds.AttachTrials(trials, trialsName); err != nil {
 			return nil, err
 		}
+	}
+	if err := elec.attach(ds); err != nil {
+		return nil, err
 	}
 	p, err := pipeline.NewPlan(rcp, ds)
 	if err != nil {

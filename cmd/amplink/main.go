@@ -28,7 +28,7 @@ func main() {
 const usage = `amplink measures power-based functional connectivity (research use only).
 
 Usage:
-  amplink run --recipe R.json [--out DIR] [--events E.tsv] [--trials T.csv] FILE...
+  amplink run --recipe R.json [--out DIR] [--events E.tsv] [--trials T.csv] [--electrodes E.tsv] FILE...
         analyse recordings; writes DIR/results.csv, results.json, recipe.json,
         figures/*.svg and maps/*.csv
   amplink demo --out DIR     write the simulated demo recording and its recipe

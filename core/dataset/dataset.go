@@ -22,6 +22,9 @@ type Dataset struct {
 	Recording *data.Recording
 	Epochs    *data.Epochs
 	Notes     []string
+	// Electrodes places the channels on the head (electrodes.go); nil
+	// means the built-in positions.
+	Electrodes *Electrodes
 }
 
 // Open decodes f (any registered format, found by its magic bytes), pairs it
@@ -104,6 +107,9 @@ func Open(r *recipe.Recipe, f format.File, events *format.File, sib format.Sibli
 		if events != nil {
 			ds.Notes = append(ds.Notes, "the input is already epoched, so "+events.Name+" is not used")
 		}
+	}
+	if err := ds.openElectrodes(sib, f.Name); err != nil {
+		return nil, err
 	}
 	if ds.Epochs != nil {
 		if tf, err := openSibling(sib, f.Name, "_trials.csv"); err == nil {

@@ -24,6 +24,7 @@ func (d *figDraw) matrix(ev analysis.EnvelopeView) {
 		return
 	}
 	opt := plot.MatrixOptions{Frame: plot.Frame{XLabel: "channel", YLabel: "channel", Width: 360, Height: 300}}
+	opt.Significant, opt.MarkNote = d.matrixMarks(ev) // sensors.go
 	var title string
 	if ev.CrossFrequency() {
 		title = fmt.Sprintf("%s: envelope r across bands", a.ID)

@@ -6,4 +6,5 @@ var (
 	ParseLabels  = parseLabels
 	FigFrame     = figFrame
 	FigPowerStep = figPowerStep
+	Significant  = significant
 )

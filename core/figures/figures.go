@@ -232,12 +232,14 @@ func (p *Plan) Draw(ctx context.Context, res, figRes []analysis.UnitResult, out 
 			if err = d.powerFigures(i); err == nil {
 				err = d.scatterFigures(tw)
 			}
+			d.scalpMaps(tw) // sensors.go
 		} else if ev, ok := p.ap.Envelope(i); ok {
 			if ev.Comodulogram() {
 				d.comodulogram(ev)
 			} else {
 				d.matrix(ev)
 				err = d.envelopes(ev)
+				d.network(ev) // sensors.go
 			}
 		} else if a.Type == recipe.TypeTFMap {
 			if err = d.powerFigures(i); err == nil {

@@ -4,6 +4,8 @@ import (
 	"math"
 	"math/rand/v2"
 	"strconv"
+
+	"amplink/core/sensors"
 )
 
 // Small deterministic inputs, one per figure, shared by the golden,
@@ -84,6 +86,43 @@ func figureCases() []figureCase {
 			v, l := matrixInput(6)
 			return Matrix(v, l, MatrixOptions{Frame: Frame{Title: "Alpha envelope correlation"}})
 		}},
+		{"matrix_marked", func() (string, Geometry) {
+			v, l := matrixInput(4)
+			sig := make([][]bool, 4)
+			for i := range sig {
+				sig[i] = make([]bool, 4)
+			}
+			sig[0][1], sig[1][0] = true, true
+			return Matrix(v, l, MatrixOptions{Frame: Frame{Title: "Alpha envelope correlation"}, Significant: sig, MarkNote: "q ≤ 0.05 (fdr)"})
+		}},
+		{"scalp", func() (string, Geometry) {
+			ss, field := scalpInput()
+			return Scalp(ss, ScalpOptions{Frame: Frame{Title: "beta-to-delta: r with the C4 seed", Width: 360, Height: 320},
+				Field: field, MarkNote: "q ≤ 0.05 (fdr)", SeedNote: "seed C4", Analysis: "beta-to-delta"})
+		}},
+		{"network", func() (string, Geometry) {
+			ss, _ := scalpInput()
+			idx := map[string]int{}
+			for i, s := range ss {
+				ss[i].Value, ss[i].Marked, ss[i].Seed = math.NaN(), false, false
+				idx[s.Name] = i
+			}
+			links := []Link{{A: idx["O1"], B: idx["O2"], R: 0.62}, {A: idx["P3"], B: idx["P4"], R: 0.21}, {A: idx["O1"], B: idx["P4"], R: -0.12}}
+			return Network(ss, links, NetworkOptions{Frame: Frame{Title: "posterior-alpha: envelope r", Width: 360, Height: 330},
+				Legend: "lines: pairs with q ≤ 0.05 (fdr)"})
+		}},
+		{"network_directed", func() (string, Geometry) {
+			ss, _ := scalpInput()
+			idx := map[string]int{}
+			for i, s := range ss {
+				ss[i].Value, ss[i].Marked, ss[i].Seed = math.NaN(), false, false
+				idx[s.Name] = i
+			}
+			links := []Link{{A: idx["T7"], B: idx["T8"], R: 0.45, Directed: true}, {A: idx["T8"], B: idx["T7"], R: 0.08, Directed: true},
+				{A: idx["T7"], B: idx["T7"], R: -0.2, Directed: true}}
+			return Network(ss, links, NetworkOptions{Frame: Frame{Title: "temporal-beta-gamma: envelope r across bands", Width: 360, Height: 340},
+				Legend: "lines: the 3 strongest pairs", ArrowNote: "14–18 Hz → 60–80 Hz"})
+		}},
 		{"crossfreq", func() (string, Geometry) {
 			s := logGrid(4, 40, 10)
 			t := logGrid(20, 80, 8)
@@ -119,6 +158,30 @@ func figureCases() []figureCase {
 			})
 		}},
 	}
+}
+
+// scalpInput places the 19 channels of the 10-20 system and gives each
+// a value from a smooth bump centred on Pz, with a spherical spline
+// through them as the field.
+func scalpInput() ([]Sensor, func(x, y float64) float64) {
+	names := []string{"Fp1", "Fp2", "F7", "F3", "Fz", "F4", "F8", "T7", "C3", "Cz", "C4", "T8", "P7", "P3", "Pz", "P4", "P8", "O1", "O2"}
+	pz, _, _ := sensors.Standard("Pz")
+	var ss []Sensor
+	var pos []sensors.Point
+	var vals []float64
+	for _, n := range names {
+		p, _, _ := sensors.Standard(n)
+		x, y := sensors.Project(p)
+		v := math.Round(1000*(0.6*math.Exp(-2.5*(1-p.Dot(pz))*4)-0.08)) / 1000
+		ss = append(ss, Sensor{Name: n, X: x, Y: y, Value: v, Marked: v > 0.3, Seed: n == "C4"})
+		pos = append(pos, p)
+		vals = append(vals, v)
+	}
+	sp, err := sensors.NewSpline(pos, vals, 0)
+	if err != nil {
+		panic(err)
+	}
+	return ss, func(x, y float64) float64 { return sp.At(sensors.Unproject(x, y)) }
 }
 
 func scatterInput(n int) ([]float64, []float64) {

@@ -109,6 +109,24 @@ func FuzzFigures(f *testing.F) {
 		tm := linGrid(0, 0.01, half)
 		add(EnvelopeTrace(tm, v[:half], v[half:2*half], EnvelopeOptions{}))
 		add(GroupDots(labels, v[:n], GroupDotsOptions{Group: &Interval{Mean: v[0], Lo: v[1], Hi: v[2]}}))
+		// the head figures: the 10-20 positions with arbitrary values, limits
+		// and a field that returns them (NaN and Inf included)
+		ss, _ := scalpInput()
+		sig := make([][]bool, n)
+		for i := range sig {
+			sig[i] = make([]bool, n)
+			sig[i][(i+1)%n] = v[i] > 0
+		}
+		add(Matrix(mat, labels, MatrixOptions{Significant: sig, MarkNote: "q"}))
+		var links []Link
+		for i := range ss {
+			ss[i].Value = v[i%len(v)]
+			ss[i].Marked = v[(i+1)%len(v)] > 0
+			links = append(links, Link{A: i, B: (i * 7) % len(ss), R: v[(i+2)%len(v)], Directed: v[(i+3)%len(v)] > 0})
+		}
+		field := func(x, y float64) float64 { return v[int(math.Abs(x*y*1000))%len(v)] }
+		add(Scalp(ss, ScalpOptions{Field: field, Limit: v[0], MarkNote: "q", SeedNote: "seed", Analysis: "a"}))
+		add(Network(ss, links, NetworkOptions{Limit: v[1], ArrowNote: "a → b"}))
 		for _, s := range svgs {
 			if _, p := checkSVG(s); len(p) > 0 {
 				t.Fatal(p)

@@ -11,7 +11,15 @@ type MatrixOptions struct {
 	Frame             // XLabel/YLabel name the axes (e.g. "target", "seed"); units are unused
 	Limit     float64 // colour limits ±Limit; zero → max|v|
 	ValueName string  // in cell titles and on the colour bar; zero → "r"
+	// Significant marks cells (same shape as the values; nil → none) with
+	// a dark inner outline and a bold value; MarkNote says what the
+	// outline means ("q ≤ 0.05, fdr") on a line under the matrix.
+	Significant [][]bool
+	MarkNote    string
 }
+
+// matrixValuesMax is the largest matrix whose cells print their values.
+const matrixValuesMax = 20
 
 // Matrix draws an N × N connectivity matrix: values[i][j] between
 // labels[i] (row, y axis) and labels[j] (column, x axis), on the diverging
@@ -19,11 +27,24 @@ type MatrixOptions struct {
 // Every cell carries a <title> "A–B: r = 0.123"; NaN and ±Inf cells are
 // grey with a diagonal hatch and the title "A–B: undefined". The geometry
 // uses index coordinates: column j spans x ∈ [j, j+1], row i spans
-// y ∈ [i, i+1] with row 0 at the top. It panics when values is not
-// len(labels) × len(labels).
+// y ∈ [i, i+1] with row 0 at the top. With at most matrixValuesMax
+// labels every finite cell prints its value (two decimals, dark on light
+// cells and white on dark ones). It panics when values (or Significant,
+// when given) is not len(labels) × len(labels).
 func Matrix(values [][]float64, labels []string, opt MatrixOptions) (string, Geometry) {
 	n := len(labels)
 	checkMatrix(values, n, n, "Matrix values")
+	if opt.Significant != nil {
+		if len(opt.Significant) != n {
+			panic("plot: Matrix significance is not the shape of the values")
+		}
+		for _, r := range opt.Significant {
+			if len(r) != n {
+				panic("plot: Matrix significance is not the shape of the values")
+			}
+		}
+	}
+	note := opt.MarkNote != "" && opt.Significant != nil
 	if opt.ValueName == "" {
 		opt.ValueName = "r"
 	}
@@ -61,6 +82,9 @@ func Matrix(values [][]float64, labels []string, opt MatrixOptions) (string, Geo
 		}
 		if xt != "" {
 			bottom += tf + 3
+		}
+		if note {
+			bottom += font + 4
 		}
 		avail := math.Min(w-left-bar.room(font), h-top-bottom)
 		avail = math.Max(avail, 10)
@@ -116,6 +140,38 @@ func Matrix(values [][]float64, labels []string, opt MatrixOptions) (string, Geo
 	if hatch.Len() > 0 {
 		d.raw(`<path d="`, hatch.String(), `" stroke="#7a7a7a" stroke-width="0.7" fill="none" pointer-events="none"/>`+"\n")
 	}
+	if n <= matrixValuesMax {
+		vf := math.Min(font, cell*0.3)
+		var marks strings.Builder
+		for i := 0; i < n; i++ {
+			for j := 0; j < n; j++ {
+				v := values[i][j]
+				sig := opt.Significant != nil && opt.Significant[i][j]
+				x, y := left+float64(j)*cell, top+float64(i)*cell
+				if sig {
+					in := math.Min(1.2, cell*0.08)
+					marks.WriteString("M" + num(x+in) + " " + num(y+in) + "h" + num(cell-2*in) + "v" + num(cell-2*in) + "h" + num(2*in-cell) + "Z")
+				}
+				if !finite(v) {
+					continue
+				}
+				t := (v + lim) / (2 * lim)
+				fill := inkColour
+				if Heath.Lab(t).L < 0.62 {
+					fill = "#ffffff"
+				}
+				weight := ""
+				if sig {
+					weight = ` font-weight="700"`
+				}
+				d.raw(`<text x="`, num(x+cell/2), `" y="`, num(y+cell/2+vf*0.35), `" text-anchor="middle" font-size="`, num(vf),
+					`" fill="`, fill, `"`, weight, ` pointer-events="none">`, fmtTick(v, 0.01), "</text>\n")
+			}
+		}
+		if marks.Len() > 0 {
+			d.raw(`<path d="`, marks.String(), `" fill="none" stroke="`, inkColour, `" stroke-width="`, num(math.Min(1.4, cell*0.09)), `" pointer-events="none"/>`+"\n")
+		}
+	}
 	d.plotAreaRect(g)
 
 	// channel labels
@@ -136,8 +192,13 @@ func Matrix(values [][]float64, labels []string, opt MatrixOptions) (string, Geo
 			d.raw(`<text x="`, num(c), `" y="`, num(top+side+3+lf*0.85), `" text-anchor="middle"`, extra, ">", esc(labels[j]), "</text>\n")
 		}
 	}
+	xy := top + side + bottom - 5
+	if note {
+		d.text(left+side/2, xy, "middle", 0, 0, "outlined: "+opt.MarkNote, "")
+		xy -= font + 4
+	}
 	if xt != "" {
-		d.text(left+side/2, top+side+bottom-5, "middle", tf, 0, xt, "")
+		d.text(left+side/2, xy, "middle", tf, 0, xt, "")
 	}
 	if yt != "" {
 		d.text(off+4+tf*0.8, top+side/2, "middle", tf, -90, yt, "")

@@ -8,6 +8,7 @@ import (
 	"fmt"
 	"io"
 	"sort"
+	"strings"
 	"time"
 
 	"amplink/app/wire"
@@ -43,12 +44,36 @@ type Worker struct {
 type Files map[string]format.File
 
 // Open implements format.Siblings over the files handed to the worker.
+// A picked electrodes.tsv (or coordsystem.json) whose name does not
+// follow the recording's stem still serves as its "<stem>_electrodes.tsv"
+// (or "<stem>_coordsystem.json") when it is the only one of its kind.
 func (f Files) Open(name string) (format.File, error) {
 	file, ok := f[name]
 	if !ok {
+		for _, kind := range []string{"electrodes.tsv", "coordsystem.json"} {
+			if strings.HasSuffix(name, "_"+kind) {
+				if one, ok := f.only(kind); ok {
+					return one, nil
+				}
+			}
+		}
 		return format.File{}, fmt.Errorf("%s: %w", name, format.ErrNoSibling)
 	}
 	return file, nil
+}
+
+// only returns the one file whose name ends in suffix (any case).
+func (f Files) only(suffix string) (format.File, bool) {
+	var found []format.File
+	for n, file := range f {
+		if strings.HasSuffix(strings.ToLower(n), suffix) {
+			found = append(found, file)
+		}
+	}
+	if len(found) != 1 {
+		return format.File{}, false
+	}
+	return found[0], true
 }
 
 // Handle is HandleFiles for files that came as bytes, named by names.

@@ -139,6 +139,14 @@ func TestInvalid(t *testing.T) {
 		{"invalid-channels-dup.tsv", `bids: invalid-channels-dup.tsv:4:1: channel "Fz" is listed again (first at line 2)`},
 		{"invalid-channels-ragged.tsv", "bids: invalid-channels-ragged.tsv:2:4: row has 4 fields; the header has 3"},
 		{"invalid-channels-name.tsv", "bids: invalid-channels-name.tsv:2:1: channel name is missing"},
+		{"invalid-electrodes-nan.tsv", `bids: invalid-electrodes-nan.tsv:2:4: z of electrode "Fz" is "NaN", not a finite number`},
+		{"invalid-electrodes-one-point.tsv", "bids: invalid-electrodes-one-point.tsv:2: every electrode (lines 2–4) is at the same point (1, 2, 3), so their positions cannot be used"},
+		{"invalid-electrodes-partial-na.tsv", `bids: invalid-electrodes-partial-na.tsv:2: electrode "Fz" has only some of x, y, z as n/a`},
+		{"invalid-electrodes-no-z.tsv", "bids: invalid-electrodes-no-z.tsv:1: electrodes file has no z column; columns are: name, x, y"},
+		{"invalid-electrodes-dup.tsv", `bids: invalid-electrodes-dup.tsv:3:1: electrode "fz" is listed again (first at line 2)`},
+		{"invalid-electrodes-text.tsv", `bids: invalid-electrodes-text.tsv:2:3: y of electrode "Fz" is "abc", not a finite number`},
+		{"invalid-coordsystem-units.json", `bids: invalid-coordsystem-units.json (EEGCoordinateUnits): "inch" is not m, cm or mm`},
+		{"invalid-coordsystem-syntax.json", "bids: invalid-coordsystem-syntax.json: offset 23: not valid JSON: unexpected end of JSON input"},
 	}
 	listed := map[string]bool{}
 	for _, tc := range cases {
@@ -146,13 +154,26 @@ func TestInvalid(t *testing.T) {
 		t.Run(tc.file, func(t *testing.T) {
 			var err error
 			var got any
-			if strings.HasPrefix(tc.file, "invalid-events") {
+			switch {
+			case strings.HasPrefix(tc.file, "invalid-electrodes"):
+				var es []Electrode
+				es, err = ReadElectrodes(openTest(t, tc.file))
+				if es != nil {
+					got = es
+				}
+			case strings.HasPrefix(tc.file, "invalid-coordsystem"):
+				var cs CoordSystem
+				cs, err = ReadCoordSystem(openTest(t, tc.file))
+				if cs != (CoordSystem{}) {
+					got = cs
+				}
+			case strings.HasPrefix(tc.file, "invalid-events"):
 				var evs []data.Event
 				evs, err = ReadEvents(openTest(t, tc.file))
 				if evs != nil {
 					got = evs
 				}
-			} else {
+			default:
 				var chs []ChannelInfo
 				chs, err = ReadChannels(openTest(t, tc.file))
 				if chs != nil {
