@@ -139,6 +139,11 @@ func TestInvalid(t *testing.T) {
 		{"invalid-channels-dup.tsv", `bids: invalid-channels-dup.tsv:4:1: channel "Fz" is listed again (first at line 2)`},
 		{"invalid-channels-ragged.tsv", "bids: invalid-channels-ragged.tsv:2:4: row has 4 fields; the header has 3"},
 		{"invalid-channels-name.tsv", "bids: invalid-channels-name.tsv:2:1: channel name is missing"},
+		{"invalid-participants-first.tsv", `bids: invalid-participants-first.tsv:1:1: the first column must be participant_id, found "age"`},
+		{"invalid-participants-dup.tsv", `bids: invalid-participants-dup.tsv:3:1: participant "sub-01" is listed twice (first on line 2)`},
+		{"invalid-participants-id.tsv", `bids: invalid-participants-id.tsv:2:1: participant_id "01" is not sub-<label> with an alphanumeric label`},
+		{"invalid-participants-label.tsv", `bids: invalid-participants-label.tsv:2:1: participant_id "sub-01_a" is not sub-<label> with an alphanumeric label`},
+		{"invalid-participants-ragged.tsv", "bids: invalid-participants-ragged.tsv:2:3: row has 3 fields; the header has 2"},
 	}
 	listed := map[string]bool{}
 	for _, tc := range cases {
@@ -146,7 +151,13 @@ func TestInvalid(t *testing.T) {
 		t.Run(tc.file, func(t *testing.T) {
 			var err error
 			var got any
-			if strings.HasPrefix(tc.file, "invalid-events") {
+			if strings.HasPrefix(tc.file, "invalid-participants") {
+				var p *Participants
+				p, err = ReadParticipants(openTest(t, tc.file))
+				if p != nil {
+					got = p
+				}
+			} else if strings.HasPrefix(tc.file, "invalid-events") {
 				var evs []data.Event
 				evs, err = ReadEvents(openTest(t, tc.file))
 				if evs != nil {
