@@ -48,6 +48,8 @@ func cmdRun(stdout, stderr io.Writer, args []string) error {
 	workers := fs.Int("workers", 0, "parallel workers (0: one per core)")
 	groupsPath := fs.String("groups", "", "with several recordings: a CSV recording,group naming two groups to compare")
 	level := fs.Float64("level", 0.95, "confidence level of the group intervals")
+	var sf studyFlags
+	sf.register(fs)
 	files, err := parseInterleaved(fs, args)
 	if err != nil {
 		return err
@@ -58,7 +60,10 @@ func cmdRun(stdout, stderr io.Writer, args []string) error {
 	if !(*level > 0 && *level < 1) {
 		return fmt.Errorf("run: --level %g must lie between 0 and 1", *level)
 	}
-	if len(files) == 0 {
+	if err := sf.check(files, *eventsPath, *trialsPath, *groupsPath); err != nil {
+		return err
+	}
+	if len(files) == 0 && sf.root == "" {
 		return errors.New("run: no input file given")
 	}
 	// The decoded recording is most of the live heap and stays until the
@@ -98,15 +103,37 @@ func cmdRun(stdout, stderr io.Writer, args []string) error {
 			return err
 		}
 	}
+	// The inputs: the files given, each with the files beside it, or the
+	// recordings of a BIDS dataset, each with its inherited companions.
+	inputs := make([]input, len(files))
+	for i, path := range files {
+		inputs[i] = input{path: path, sib: &dirSiblings{dir: filepath.Dir(path)}}
+	}
+	var st *datasetRun
+	if sf.root != "" {
+		if st, err = sf.find(stdout); err != nil {
+			return err
+		}
+		inputs = st.inputs()
+	}
 	ctx := context.Background()
 	var all *report.Results
-	for _, path := range files {
-		res, err := runOne(ctx, stderr, rcp, path, events, trials, *trialsPath, *workers, len(files) > 1)
+	var failed []string
+	for _, in := range inputs {
+		res, err := runOne(ctx, stderr, rcp, in.path, in.sib, events, trials, *trialsPath, *workers, len(inputs) > 1)
+		in.sib.Close()
+		if err != nil && st != nil {
+			// In a study, a recording that fails is reported and the others go on.
+			msg := fmt.Sprintf("%s: failed: %v", filepath.Base(in.path), err)
+			fmt.Fprintln(stderr, "amplink:", msg)
+			failed = append(failed, msg)
+			continue
+		}
 		if err != nil {
 			return err
 		}
 		for i := range res.Rows {
-			res.Rows[i].Extra = append(res.Rows[i].Extra, report.Field{Name: "recording", Value: filepath.Base(path)})
+			res.Rows[i].Extra = append(res.Rows[i].Extra, report.Field{Name: "recording", Value: filepath.Base(in.path)})
 		}
 		if all == nil {
 			all = res
@@ -117,13 +144,21 @@ func cmdRun(stdout, stderr io.Writer, args []string) error {
 		all.Figures = append(all.Figures, res.Figures...)
 		all.Warnings = append(all.Warnings, res.Warnings...)
 	}
-	if len(files) > 1 {
+	if all == nil {
+		return fmt.Errorf("run: every recording of %s failed", sf.root)
+	}
+	all.Warnings = append(all.Warnings, failed...)
+	analysed := len(inputs) - len(failed)
+	if len(inputs) > 1 && analysed > 1 {
 		// Group rows across the recordings (the same rows amplink merge adds).
 		var groups map[string]string
 		if *groupsPath != "" {
 			if groups, err = readGroups(stderr, *groupsPath, all.Rows); err != nil {
 				return err
 			}
+		}
+		if st != nil {
+			groups = st.study.GroupOf()
 		}
 		g, err := report.GroupRows(all.Rows, groups, *level)
 		if err != nil {
@@ -139,21 +174,39 @@ func cmdRun(stdout, stderr io.Writer, args []string) error {
 	for _, w := range all.Warnings {
 		fmt.Fprintln(stderr, "note:", w)
 	}
-	if err := writeOutputs(*outDir, all); err != nil {
+	var extra []namedFile
+	if st != nil {
+		b, err := st.summaryJSON(failed)
+		if err != nil {
+			return err
+		}
+		extra = append(extra, namedFile{"study.json", b})
+	}
+	if err := writeOutputs(*outDir, all, extra...); err != nil {
 		return err
+	}
+	if st != nil {
+		st.report(stdout, analysed, failed, all.Rows)
 	}
 	fmt.Fprintf(stdout, "%d results written to %s\n", len(all.Rows), filepath.Join(*outDir, "results.csv"))
 	return nil
 }
 
-func runOne(ctx context.Context, stderr io.Writer, rcp *recipe.Recipe, path string, events *format.File, trials *csv.Table, trialsName string, workers int, prefix bool) (*report.Results, error) {
+// input is one recording to analyse and the files that go with it.
+type input struct {
+	path string
+	sib  interface {
+		format.Siblings
+		Close()
+	}
+}
+
+func runOne(ctx context.Context, stderr io.Writer, rcp *recipe.Recipe, path string, sib format.Siblings, events *format.File, trials *csv.Table, trialsName string, workers int, prefix bool) (*report.Results, error) {
 	f, osf, err := openFile(path)
 	if err != nil {
 		return nil, err
 	}
 	defer osf.Close()
-	sib := &dirSiblings{dir: filepath.Dir(path)}
-	defer sib.Close()
 	ds, err := dataset.Open(rcp, f, events, sib)
 	if err != nil {
 		return nil, err
@@ -198,7 +251,7 @@ func runOne(ctx context.Context, stderr io.Writer, rcp *recipe.Recipe, path stri
 // writeOutputs writes every output into a staging directory beside dir and
 // moves it into place, results.csv last, so that a failure part-way leaves
 // no results.csv.
-func writeOutputs(dir string, res *report.Results) error {
+func writeOutputs(dir string, res *report.Results, extra ...namedFile) error {
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return err
 	}
@@ -223,6 +276,13 @@ func writeOutputs(dir string, res *report.Results) error {
 	}
 	if err := write("recipe.json", func(w io.Writer) error { _, err := w.Write(res.Recipe); return err }); err != nil {
 		return err
+	}
+	names := []string{"results.json", "recipe.json"}
+	for _, f := range extra {
+		if err := write(f.name, func(w io.Writer) error { _, err := w.Write(f.data); return err }); err != nil {
+			return err
+		}
+		names = append(names, f.name)
 	}
 	for i := range res.Maps {
 		m := &res.Maps[i]
@@ -256,7 +316,7 @@ func writeOutputs(dir string, res *report.Results) error {
 			}
 		}
 	}
-	for _, name := range []string{"results.json", "recipe.json", "results.csv"} {
+	for _, name := range append(names, "results.csv") {
 		if err := os.Rename(filepath.Join(stage, name), filepath.Join(dir, name)); err != nil {
 			return err
 		}

@@ -294,7 +294,7 @@ func Find(paths []string, open Opener, f Filter) (*Study, error) {
 			continue
 		}
 		if otherDirs[parts[0]] {
-			skipDir[parts[0]+"/"] = parts[0] + "/ holds no raw recordings (BIDS keeps code, derivatives, sourcedata, stimuli and phenotype apart)"
+			skipDir[parts[0]+"/"] = "holds no raw recordings (BIDS keeps code, derivatives, sourcedata, stimuli and phenotype apart)"
 			continue
 		}
 		sub, ok := strings.CutPrefix(parts[0], "sub-")
