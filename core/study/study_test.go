@@ -1,7 +1,6 @@
 package study
 
 import (
-	"context"
 	"errors"
 	"fmt"
 	"reflect"
@@ -238,7 +237,6 @@ func TestSiblingsInherited(t *testing.T) {
 	if v := ds.Epochs.TrialInfo[1].Extra["rt"]; v != "0.4" {
 		t.Errorf("trial 2 rt = %q, want 0.4 from the trials table", v)
 	}
-	_ = context.Background()
 	// A companion kind that applies to nothing is absent, not looked for beside the file.
 	if _, err := r.Siblings(m).Open("sub-01_task-tones_electrodes.tsv"); !errors.Is(err, format.ErrNoSibling) {
 		t.Errorf("electrodes: %v, want ErrNoSibling", err)
