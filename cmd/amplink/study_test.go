@@ -293,6 +293,9 @@ func TestStudyErrors(t *testing.T) {
 	os.WriteFile(filepath.Join(root, "sub-1", "eeg", "sub-1_task-x_eeg.csv"), b, 0o644)
 	empty := filepath.Join(dir, "empty")
 	os.MkdirAll(empty, 0o755)
+	broken := filepath.Join(dir, "broken")
+	os.MkdirAll(filepath.Join(broken, "sub-1", "eeg"), 0o755)
+	os.WriteFile(filepath.Join(broken, "sub-1", "eeg", "sub-1_task-x_eeg.csv"), []byte("trial,time,S\n1,0,x\n"), 0o644)
 	cases := []struct {
 		args []string
 		want string
@@ -305,6 +308,7 @@ func TestStudyErrors(t *testing.T) {
 		{[]string{"--dataset", empty}, "no recording found in " + empty},
 		{[]string{"--dataset", fix}, "is not a folder"},
 		{[]string{"--dataset", root, "--task", "y"}, "no recording found"},
+		{[]string{"--dataset", broken}, "every recording of " + broken + " failed"},
 	}
 	for _, tc := range cases {
 		t.Run(strings.Join(tc.args, " "), func(t *testing.T) {
@@ -312,6 +316,9 @@ func TestStudyErrors(t *testing.T) {
 			err := run(&stdout, &stderr, append([]string{"run", "--recipe", rp, "--out", filepath.Join(dir, "out")}, tc.args...))
 			if err == nil || !strings.Contains(err.Error(), tc.want) {
 				t.Errorf("error %v, want %q", err, tc.want)
+			}
+			if _, err := os.Stat(filepath.Join(dir, "out", "results.csv")); err == nil {
+				t.Error("a failed run left results.csv")
 			}
 		})
 	}

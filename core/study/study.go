@@ -621,3 +621,28 @@ func (s *Study) readDescription(open Opener) {
 		s.Notes = append(s.Notes, "dataset_description.json lacks Name or BIDSVersion (BIDS requires both)")
 	}
 }
+
+// TrimRoot removes the dataset's own folder from paths listed from above
+// it, as a browser lists a picked folder ("study/sub-01/…"): when every
+// path lies inside one folder that is not itself part of the BIDS layout
+// (not sub-<label>, code, derivatives, …), it returns that folder and the
+// paths below it; otherwise "" and the paths unchanged.
+func TrimRoot(paths []string) (string, []string) {
+	root := ""
+	for _, p := range paths {
+		p = strings.TrimPrefix(strings.ReplaceAll(p, "\\", "/"), "/")
+		first, _, ok := strings.Cut(p, "/")
+		if !ok || (root != "" && first != root) {
+			return "", paths
+		}
+		root = first
+	}
+	if root == "" || strings.HasPrefix(root, "sub-") || otherDirs[root] {
+		return "", paths
+	}
+	out := make([]string, len(paths))
+	for i, p := range paths {
+		out[i] = strings.TrimPrefix(strings.TrimPrefix(strings.ReplaceAll(p, "\\", "/"), "/"), root+"/")
+	}
+	return root, out
+}

@@ -11,6 +11,7 @@ import (
 	"amplink/core/dataset"
 	"amplink/core/format"
 	_ "amplink/core/format/all"
+	"amplink/core/format/bids"
 	"amplink/core/recipe"
 )
 
@@ -409,3 +410,52 @@ func TestFindUnrelatedFiles(t *testing.T) {
 		t.Errorf("description %q %q", s.Name, s.BIDSVersion)
 	}
 }
+
+func TestTrimRoot(t *testing.T) {
+	cases := []struct {
+		in   []string
+		root string
+		out  []string
+	}{
+		{[]string{"study/participants.tsv", "study/sub-01/eeg/a_eeg.edf"}, "study", []string{"participants.tsv", "sub-01/eeg/a_eeg.edf"}},
+		{[]string{"participants.tsv", "sub-01/eeg/a_eeg.edf"}, "", []string{"participants.tsv", "sub-01/eeg/a_eeg.edf"}},
+		{[]string{"sub-01/eeg/a_eeg.edf", "sub-01/eeg/b_eeg.edf"}, "", []string{"sub-01/eeg/a_eeg.edf", "sub-01/eeg/b_eeg.edf"}},
+		{[]string{"a/x", "b/y"}, "", []string{"a/x", "b/y"}},
+		{[]string{`ds\sub-01\eeg\a_eeg.edf`}, "ds", []string{"sub-01/eeg/a_eeg.edf"}},
+	}
+	for _, tc := range cases {
+		root, out := TrimRoot(tc.in)
+		if root != tc.root || !reflect.DeepEqual(out, tc.out) {
+			t.Errorf("TrimRoot(%q) = %q, %q; want %q, %q", tc.in, root, out, tc.root, tc.out)
+		}
+	}
+}
+
+// FuzzParseName: any name either parses into entities in the
+// specification's order with alphanumeric values, or is refused; nothing
+// panics. Seeded from the names of the tests above.
+func FuzzParseName(f *testing.F) {
+	for _, s := range []string{"sub-control01_task-rest_eeg.edf", "sub-01_ses-1_task-tones_acq-hi_run-02_eeg.bdf", "task-tones_events.tsv",
+		"sub-01_run-1_task-tones_eeg.edf", "sub-01_task-go_nogo_eeg.edf", "sub-01_run-a_eeg.edf", "participants.tsv", "", ".", "_", "sub-_eeg"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		n, err := ParseName(s)
+		if err != nil {
+			return
+		}
+		if !bidsLabel(n.Suffix) {
+			t.Fatalf("%q: suffix %q", s, n.Suffix)
+		}
+		last := -1
+		for _, e := range n.Entities {
+			r, ok := entityRank[e.Key]
+			if !ok || r <= last || !bidsLabel(e.Value) {
+				t.Fatalf("%q: entities %v", s, n.Entities)
+			}
+			last = r
+		}
+	})
+}
+
+var bidsLabel = bids.IsLabel
