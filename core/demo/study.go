@@ -188,7 +188,8 @@ const StudyPlanted = `Planted group difference: C4 pre-tone beta (15-25 Hz) pred
 post-tone delta (1.5-3.5 Hz) across trials in the "rested" group (log-amplitude
 correlation 0.7) and not at all in the "sleepy" group. A correct analysis finds
 the group:rested-sleepy row of beta-to-delta C4->Pz significant (Welch t on
-Fisher z) and no other difference row significant after FDR correction. The
+Fisher z) and no other difference row significant after FDR correction (the
+q column). The
 O1-O2 alpha envelope coupling is planted in both groups alike: its pooled
 group row is significant and its difference row is not.`
 
