@@ -12,7 +12,6 @@ import (
 	"runtime/debug"
 
 	"amplink/core/dataset"
-	"amplink/core/figures"
 	"amplink/core/format"
 	_ "amplink/core/format/all"
 	"amplink/core/format/csv"
@@ -117,10 +116,10 @@ func cmdRun(stdout, stderr io.Writer, args []string) error {
 		inputs = st.inputs()
 	}
 	ctx := context.Background()
-	var all *report.Results
+	comb := pipeline.NewCombined(len(inputs))
 	var failed []string
 	for _, in := range inputs {
-		res, err := runOne(ctx, stderr, rcp, in.path, in.sib, events, trials, *trialsPath, *workers, len(inputs) > 1)
+		res, err := runOne(ctx, stderr, rcp, in.path, in.sib, events, trials, *trialsPath, *workers)
 		in.sib.Close()
 		if err != nil && st != nil {
 			// In a study, a recording that fails is reported and the others go on.
@@ -132,23 +131,14 @@ func cmdRun(stdout, stderr io.Writer, args []string) error {
 		if err != nil {
 			return err
 		}
-		for i := range res.Rows {
-			res.Rows[i].Extra = append(res.Rows[i].Extra, report.Field{Name: "recording", Value: filepath.Base(in.path)})
-		}
-		if all == nil {
-			all = res
-			continue
-		}
-		all.Rows = append(all.Rows, res.Rows...)
-		all.Maps = append(all.Maps, res.Maps...)
-		all.Figures = append(all.Figures, res.Figures...)
-		all.Warnings = append(all.Warnings, res.Warnings...)
+		comb.Add(filepath.Base(in.path), res)
 	}
+	all := comb.Results()
 	if all == nil {
 		return fmt.Errorf("run: every recording of %s failed", sf.root)
 	}
 	all.Warnings = append(all.Warnings, failed...)
-	analysed := len(inputs) - len(failed)
+	analysed := comb.Recordings()
 	if len(inputs) > 1 && analysed > 1 {
 		// Group rows across the recordings (the same rows amplink merge adds).
 		var groups map[string]string
@@ -160,13 +150,8 @@ func cmdRun(stdout, stderr io.Writer, args []string) error {
 		if st != nil {
 			groups = st.study.GroupOf()
 		}
-		g, err := report.GroupRows(all.Rows, groups, *level)
-		if err != nil {
+		if err := comb.Group(groups, *level, rcp.Figures.Enabled); err != nil {
 			return err
-		}
-		all.Rows = append(all.Rows, g...)
-		if rcp.Figures.Enabled {
-			all.Figures = append(all.Figures, figures.Group(all.Rows)...)
 		}
 	} else if *groupsPath != "" {
 		return errors.New("run: --groups compares recordings; give more than one input file")
@@ -201,7 +186,7 @@ type input struct {
 	}
 }
 
-func runOne(ctx context.Context, stderr io.Writer, rcp *recipe.Recipe, path string, sib format.Siblings, events *format.File, trials *csv.Table, trialsName string, workers int, prefix bool) (*report.Results, error) {
+func runOne(ctx context.Context, stderr io.Writer, rcp *recipe.Recipe, path string, sib format.Siblings, events *format.File, trials *csv.Table, trialsName string, workers int) (*report.Results, error) {
 	f, osf, err := openFile(path)
 	if err != nil {
 		return nil, err
@@ -232,18 +217,6 @@ func runOne(ctx context.Context, stderr io.Writer, rcp *recipe.Recipe, path stri
 	out, err := p.Finish(ctx, res)
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", path, err)
-	}
-	if prefix {
-		stem := dataset.Stem(path)
-		for i := range out.Maps {
-			out.Maps[i].Name = stem + "_" + out.Maps[i].Name
-		}
-		for i := range out.Figures {
-			out.Figures[i].Name = stem + "_" + out.Figures[i].Name
-		}
-		for i, w := range out.Warnings {
-			out.Warnings[i] = filepath.Base(path) + ": " + w
-		}
 	}
 	return out, nil
 }
