@@ -248,10 +248,7 @@ type companion struct {
 func Find(paths []string, open Opener, f Filter) (*Study, error) {
 	s := &Study{}
 	var comps []*companion
-	type candidate struct {
-		rec Recording
-	}
-	var cands []candidate
+	var cands []Recording          // recordings found, before the filter
 	skipDir := map[string]string{} // folder → reason, reported once
 	skip := func(p, reason string) { s.Skipped = append(s.Skipped, Skipped{p, reason}) }
 	clean := make([]string, 0, len(paths))
@@ -380,8 +377,8 @@ func Find(paths []string, open Opener, f Filter) (*Study, error) {
 			}
 			continue
 		}
-		cands = append(cands, candidate{Recording{Path: p, Datatype: dt, Name: n, Sub: sub, Ses: ses,
-			Task: n.Get("task"), Acq: n.Get("acq"), Run: n.Get("run")}})
+		cands = append(cands, Recording{Path: p, Datatype: dt, Name: n, Sub: sub, Ses: ses,
+			Task: n.Get("task"), Acq: n.Get("acq"), Run: n.Get("run")})
 	}
 	dirs := make([]string, 0, len(skipDir))
 	for d := range skipDir {
@@ -429,8 +426,7 @@ func Find(paths []string, open Opener, f Filter) (*Study, error) {
 		want[strings.TrimPrefix(p, "sub-")] = true
 	}
 	missing := map[string]bool{}
-	for _, c := range cands {
-		r := c.rec
+	for _, r := range cands {
 		if reason := f.reject(&r, want); reason != "" {
 			skip(r.Path, "left out by the filter: "+reason)
 			continue
@@ -476,7 +472,7 @@ func Find(paths []string, open Opener, f Filter) (*Study, error) {
 	if parts != nil {
 		have := map[string]bool{}
 		for _, c := range cands {
-			have[c.rec.Sub] = true
+			have[c.Sub] = true
 		}
 		var none []string
 		for _, l := range parts.Labels {
