@@ -319,6 +319,8 @@ func Find(paths []string, open Opener, f Filter) (*Study, error) {
 			case kindOf(n) != "":
 				comps = append(comps, &companion{path: p, dir: dir, kind: kindOf(n), name: n, depth: len(parts) - 1})
 			case n.Suffix == "sessions" || n.Suffix == "scans":
+			case datatypes[n.Suffix]:
+				skip(p, "a recording must lie in a datatype folder ("+n.Suffix+"/) below its subject or session")
 			default:
 				skip(p, "not a recording or a companion amplink reads")
 			}
