@@ -381,6 +381,7 @@ func TestFindUnrelatedFiles(t *testing.T) {
 		"sub-04/eeg/sub-04_task-tones_ieeg.edf":         "x",
 		"sub-05/eeg/sub-01_task-tones_eeg.edf":          "x",
 		"pilot/eeg/p1_eeg.edf":                          "x",
+		"sub-06/sub-06_task-tones_eeg.edf":              "x",
 	}
 	s := find(t, m, Filter{})
 	if got := recordingPaths(s); !reflect.DeepEqual(got, []string{"sub-01/eeg/sub-01_task-tones_eeg.edf"}) {
@@ -397,6 +398,7 @@ func TestFindUnrelatedFiles(t *testing.T) {
 		"sub-04/eeg/sub-04_task-tones_ieeg.edf":    "suffix ieeg is not the recording suffix eeg",
 		"sub-05/eeg/sub-01_task-tones_eeg.edf":     `its sub entity "01" does not match its folder sub-05`,
 		"pilot/":                                   "not a subject folder",
+		"sub-06/sub-06_task-tones_eeg.edf":         "a recording must lie in a datatype folder (eeg/)",
 	}
 	for p, w := range want {
 		if r := skippedReason(s, p); !strings.Contains(r, w) {
