@@ -21,11 +21,15 @@ func cmdDemo(stdout, stderr io.Writer, args []string) error {
 	fs := flag.NewFlagSet("demo", flag.ContinueOnError)
 	fs.SetOutput(stderr)
 	out := fs.String("out", "amplink-demo", "directory to write the demo files into")
+	studyDir := fs.String("study", "", "write the simulated BIDS study (12 participants in two groups) into this directory instead")
 	if err := fs.Parse(args); err != nil {
 		return err
 	}
 	if fs.NArg() > 0 {
 		return fmt.Errorf("demo: unexpected argument %q", fs.Arg(0))
+	}
+	if *studyDir != "" {
+		return writeStudy(stdout, *studyDir)
 	}
 	if err := os.MkdirAll(*out, 0o755); err != nil {
 		return err
@@ -43,6 +47,29 @@ func cmdDemo(stdout, stderr io.Writer, args []string) error {
 	}
 	fmt.Fprintf(stdout, "try: amplink run --recipe %s --out %s %s\n",
 		filepath.Join(*out, "recipe.json"), filepath.Join(*out, "results"), filepath.Join(*out, "demo_epochs.csv"))
+	return nil
+}
+
+// writeStudy writes the simulated BIDS study into dir, one file at a time.
+func writeStudy(stdout io.Writer, dir string) error {
+	n, size := 0, 0
+	_, err := demo.StudyFiles(func(f demo.StudyFile) error {
+		p := filepath.Join(dir, filepath.FromSlash(f.Path))
+		if err := os.MkdirAll(filepath.Dir(p), 0o755); err != nil {
+			return err
+		}
+		n++
+		size += len(f.Data)
+		return os.WriteFile(p, f.Data, 0o644)
+	})
+	if err != nil {
+		return err
+	}
+	fmt.Fprintf(stdout, "wrote the simulated BIDS study to %s: %d participants in groups %s and %s, %d files, %d bytes\n",
+		dir, demo.StudyParticipants, demo.StudyGroupCoupled, demo.StudyGroupUncoupled, n, size)
+	fmt.Fprintln(stdout, demo.StudyPlanted)
+	fmt.Fprintf(stdout, "try: amplink run --recipe %s --out %s --dataset %s --group-column group\n",
+		filepath.Join(dir, "code", "recipe.json"), filepath.Join(dir, "..", filepath.Base(dir)+"-results"), dir)
 	return nil
 }
 

@@ -11,7 +11,6 @@ import (
 
 	"amplink/core/data"
 	"amplink/core/dataset"
-	"amplink/core/figures"
 	"amplink/core/format"
 	_ "amplink/core/format/all"
 	"amplink/core/format/csv"
@@ -62,6 +61,8 @@ func cmdRun(stdout, stderr io.Writer, args []string) (err error) {
 	groupsPath := fs.String("groups", "", "with several recordings: a CSV recording,group naming two groups to compare")
 	level := fs.Float64("level", 0.95, "confidence level of the group intervals")
 	maxMemory := fs.String("max-memory", defaultMaxMemory, "the most float32 samples one recording or its epochs may hold, e.g. 4GiB")
+	var sf studyFlags
+	sf.register(fs)
 	files, err := parseInterleaved(fs, args)
 	if err != nil {
 		return err
@@ -76,7 +77,10 @@ func cmdRun(stdout, stderr io.Writer, args []string) (err error) {
 	if err != nil {
 		return fmt.Errorf("run: --max-memory: %v", err)
 	}
-	if len(files) == 0 {
+	if err := sf.check(files, *eventsPath, *trialsPath, *groupsPath); err != nil {
+		return err
+	}
+	if len(files) == 0 && sf.root == "" {
 		return errors.New("run: no input file given")
 	}
 	// The sample budget is checked by the readers and the epoching before
@@ -124,29 +128,47 @@ func cmdRun(stdout, stderr io.Writer, args []string) (err error) {
 		return err
 	}
 	defer elec.close()
-	ctx := context.Background()
-	var all *report.Results
-	for _, path := range files {
-		res, err := runOne(ctx, stderr, rcp, *recipePath, path, events, trials, *trialsPath, elec, *workers, len(files) > 1)
-		if err != nil {
-			if errors.Is(err, data.ErrTooLarge) {
-				err = fmt.Errorf("%w; --max-memory %s is the budget, raise it to analyse this", err, *maxMemory)
-			}
+	// The inputs: the files given, each with the files beside it, or the
+	// recordings of a BIDS dataset, each with its inherited companions.
+	inputs := make([]input, len(files))
+	for i, path := range files {
+		inputs[i] = input{path: path, sib: &dirSiblings{dir: filepath.Dir(path)}}
+	}
+	var st *datasetRun
+	if sf.root != "" {
+		if st, err = sf.find(stdout); err != nil {
 			return err
 		}
-		for i := range res.Rows {
-			res.Rows[i].Extra = append(res.Rows[i].Extra, report.Field{Name: "recording", Value: filepath.Base(path)})
+		inputs = st.inputs()
+	}
+	ctx := context.Background()
+	comb := pipeline.NewCombined(len(inputs))
+	var failed []string
+	for _, in := range inputs {
+		res, err := runOne(ctx, stderr, rcp, *recipePath, in.path, in.sib, events, trials, *trialsPath, elec, *workers)
+		if errors.Is(err, data.ErrTooLarge) {
+			err = fmt.Errorf("%w; --max-memory %s is the budget, raise it to analyse this", err, *maxMemory)
 		}
-		if all == nil {
-			all = res
+		in.sib.Close()
+		if err != nil && st != nil {
+			// In a study, a recording that fails is reported and the others go on.
+			msg := fmt.Sprintf("%s: failed: %v", filepath.Base(in.path), err)
+			fmt.Fprintln(stderr, "amplink:", msg)
+			failed = append(failed, msg)
 			continue
 		}
-		all.Rows = append(all.Rows, res.Rows...)
-		all.Maps = append(all.Maps, res.Maps...)
-		all.Figures = append(all.Figures, res.Figures...)
-		all.Warnings = append(all.Warnings, res.Warnings...)
+		if err != nil {
+			return err
+		}
+		comb.Add(filepath.Base(in.path), res)
 	}
-	if len(files) > 1 {
+	all := comb.Results()
+	if all == nil {
+		return fmt.Errorf("run: every recording of %s failed", sf.root)
+	}
+	all.Warnings = append(all.Warnings, failed...)
+	analysed := comb.Recordings()
+	if len(inputs) > 1 && analysed > 1 {
 		// Group rows across the recordings (the same rows amplink merge adds).
 		var groups map[string]string
 		if *groupsPath != "" {
@@ -154,13 +176,11 @@ func cmdRun(stdout, stderr io.Writer, args []string) (err error) {
 				return err
 			}
 		}
-		g, err := report.GroupRows(all.Rows, groups, *level)
-		if err != nil {
-			return err
+		if st != nil {
+			groups = st.study.GroupOf()
 		}
-		all.Rows = append(all.Rows, g...)
-		if rcp.Figures.Enabled {
-			all.Figures = append(all.Figures, figures.Group(all.Rows)...)
+		if err := comb.Group(groups, *level, rcp.Figures.Enabled); err != nil {
+			return err
 		}
 	} else if *groupsPath != "" {
 		return errors.New("run: --groups compares recordings; give more than one input file")
@@ -168,21 +188,39 @@ func cmdRun(stdout, stderr io.Writer, args []string) (err error) {
 	for _, w := range all.Warnings {
 		fmt.Fprintln(stderr, "note:", w)
 	}
-	if err := writeOutputs(*outDir, all); err != nil {
+	var extra []namedFile
+	if st != nil {
+		b, err := st.summaryJSON(failed)
+		if err != nil {
+			return err
+		}
+		extra = append(extra, namedFile{"study.json", b})
+	}
+	if err := writeOutputs(*outDir, all, extra...); err != nil {
 		return err
+	}
+	if st != nil {
+		st.report(stdout, analysed, failed, all.Rows)
 	}
 	fmt.Fprintf(stdout, "%d results written to %s\n", len(all.Rows), filepath.Join(*outDir, "results.csv"))
 	return nil
 }
 
-func runOne(ctx context.Context, stderr io.Writer, rcp *recipe.Recipe, recipePath, path string, events *format.File, trials *csv.Table, trialsName string, elec *electrodeFiles, workers int, prefix bool) (*report.Results, error) {
+// input is one recording to analyse and the files that go with it.
+type input struct {
+	path string
+	sib  interface {
+		format.Siblings
+		Close()
+	}
+}
+
+func runOne(ctx context.Context, stderr io.Writer, rcp *recipe.Recipe, recipePath, path string, sib format.Siblings, events *format.File, trials *csv.Table, trialsName string, elec *electrodeFiles, workers int) (*report.Results, error) {
 	f, osf, err := openFile(path)
 	if err != nil {
 		return nil, err
 	}
 	defer osf.Close()
-	sib := &dirSiblings{dir: filepath.Dir(path)}
-	defer sib.Close()
 	ds, err := dataset.Open(rcp, f, events, sib)
 	if err != nil {
 		return nil, err
@@ -212,18 +250,6 @@ func runOne(ctx context.Context, stderr io.Writer, rcp *recipe.Recipe, recipePat
 	out, err := p.Finish(ctx, res)
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", path, err)
-	}
-	if prefix {
-		stem := dataset.Stem(path)
-		for i := range out.Maps {
-			out.Maps[i].Name = stem + "_" + out.Maps[i].Name
-		}
-		for i := range out.Figures {
-			out.Figures[i].Name = stem + "_" + out.Figures[i].Name
-		}
-		for i, w := range out.Warnings {
-			out.Warnings[i] = filepath.Base(path) + ": " + w
-		}
 	}
 	return out, nil
 }

@@ -2,8 +2,10 @@
 // and LFP recordings.
 //
 //	amplink run --recipe R.json [--out DIR] [--events E.tsv] FILE...
+//	amplink run --recipe R.json [--out DIR] --dataset ROOT [--task T] [--session S] [--run N] [--group-column C]
 //	amplink merge --out FILE [--groups G.csv] [--level L] [--figures DIR] RESULTS.csv...
 //	amplink demo --out DIR
+//	amplink demo --study DIR
 //	amplink site --out DIR
 //	amplink serve [--addr 127.0.0.1:8080]
 package main
@@ -31,7 +33,11 @@ Usage:
   amplink run --recipe R.json [--out DIR] [--events E.tsv] [--trials T.csv] [--electrodes E.tsv] FILE...
         analyse recordings; writes DIR/results.csv, results.json, recipe.json,
         figures/*.svg and maps/*.csv
+  amplink run --recipe R.json [--out DIR] --dataset ROOT [--task T] [--session S]
+        [--run N] [--participants L,...] [--group-column C]
+        analyse every recording of a BIDS dataset (as run FILE... --groups G.csv)
   amplink demo --out DIR     write the simulated demo recording and its recipe
+  amplink demo --study DIR   write a simulated BIDS study of 12 participants in two groups
   amplink merge --out FILE [--groups G.csv] [--level L] [--figures DIR] RESULTS.csv...
         combine per-recording tables and add group rows
   amplink site --out DIR     write the static web site

@@ -16,7 +16,7 @@ import (
 // The files amplink run writes into --out. A failed run removes these (and
 // only these) so that nothing of an earlier run is mistaken for its output.
 var (
-	outFiles = []string{"results.csv", "results.json", "recipe.json"}
+	outFiles = []string{"results.csv", "results.json", "recipe.json", "study.json"}
 	outDirs  = map[string]string{"maps": ".csv", "figures": ".svg"}
 )
 
@@ -41,7 +41,7 @@ func scanOut(args []string, def string) string {
 }
 
 // removeOutputs removes what an earlier run wrote into dir: results.csv,
-// results.json, recipe.json, maps/*.csv and figures/*.svg (and maps/ and
+// results.json, recipe.json, study.json (a --dataset run), maps/*.csv and figures/*.svg (and maps/ and
 // figures/ when that leaves them empty). Other files are left alone.
 func removeOutputs(dir string) error {
 	st, err := os.Stat(dir)
@@ -89,7 +89,7 @@ func removeOutputs(dir string) error {
 // dir and, once all of it is written, replaces the earlier run's outputs in
 // dir with it (results.csv last). A failure part-way leaves nothing in dir
 // (the caller removes the earlier outputs, see removeOutputs).
-func writeOutputs(dir string, res *report.Results) error {
+func writeOutputs(dir string, res *report.Results, extra ...namedFile) error {
 	parent := filepath.Dir(filepath.Clean(dir))
 	if err := os.MkdirAll(parent, 0o755); err != nil {
 		return err
@@ -120,6 +120,13 @@ func writeOutputs(dir string, res *report.Results) error {
 	}
 	if err := write("recipe.json", func(w io.Writer) error { _, err := w.Write(res.Recipe); return err }); err != nil {
 		return err
+	}
+	names0 := []string{"results.json", "recipe.json"}
+	for _, f := range extra {
+		if err := write(f.name, func(w io.Writer) error { _, err := w.Write(f.data); return err }); err != nil {
+			return err
+		}
+		names0 = append(names0, f.name)
 	}
 	// Distinct channels may sanitise alike (A/B, A_B): unique, stable names.
 	var mn, fn []string
@@ -168,7 +175,7 @@ func writeOutputs(dir string, res *report.Results) error {
 			}
 		}
 	}
-	for _, name := range []string{"results.json", "recipe.json", "results.csv"} {
+	for _, name := range append(names0, "results.csv") {
 		if err := os.Rename(filepath.Join(stage, name), filepath.Join(dir, name)); err != nil {
 			return err
 		}

@@ -35,7 +35,8 @@ type Dataset struct {
 // from a sibling "<stem>_events.tsv", otherwise from the file itself (EDF+
 // annotations). A sibling "<stem>_channels.tsv" marks bad channels and, for
 // audio files whose channels are unnamed, names them in order. For epoched
-// or epoched-by-the-recipe input, a sibling "<stem>_trials.csv" (trial,<name>...) adds per-trial
+// or epoched-by-the-recipe input, a sibling "<stem>_trials.csv" or
+// "<stem>_trials.tsv" (trial,<name>...) adds per-trial
 // values for covariates and conditions, matched by trial id (after
 // epoching, the 1-based number of the kept epoch).
 func Open(r *recipe.Recipe, f format.File, events *format.File, sib format.Siblings) (*Dataset, error) {
@@ -112,7 +113,11 @@ func Open(r *recipe.Recipe, f format.File, events *format.File, sib format.Sibli
 		return nil, err
 	}
 	if ds.Epochs != nil {
-		if tf, err := openSibling(sib, f.Name, "_trials.csv"); err == nil {
+		tf, err := openSibling(sib, f.Name, "_trials.csv")
+		if errors.Is(err, format.ErrNoSibling) {
+			tf, err = openSibling(sib, f.Name, "_trials.tsv")
+		}
+		if err == nil {
 			t, err := csv.DecodeTrials(tf)
 			if err != nil {
 				return nil, err

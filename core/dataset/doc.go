@@ -7,7 +7,8 @@
 // (any registered format, found by its magic bytes), then looks beside it,
 // by the recording's stem (Stem), for "<stem>_events.tsv" (BIDS events),
 // "<stem>_channels.tsv" (bad channels, and names for unnamed audio
-// channels) and "<stem>_trials.csv" (per-trial values: trial,<name>...).
+// channels) and "<stem>_trials.csv" or "<stem>_trials.tsv" (per-trial values:
+// trial,<name>...).
 // TrialID, TrialValue and HasColumn read those per-trial values back, and
 // Describe summarises a dataset for the page.
 package dataset

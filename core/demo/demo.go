@@ -54,8 +54,22 @@ var (
 // Recording returns the simulated continuous recording with its tone events.
 // The result is shared: callers must not modify it.
 func Recording() *data.Recording {
-	once.Do(func() { rec = generate() })
+	once.Do(func() { rec = Simulate(Options{Seed: 20261201, Tones: NTones, Coupling: CouplingLogAmp}) })
 	return rec
+}
+
+// Options vary the simulated session. The demo recording is
+// Options{Seed: 20261201, Tones: NTones, Coupling: CouplingLogAmp}.
+type Options struct {
+	Seed  uint64 // seeds the PCG generator, with Tones
+	Tones int    // the number of tones, at least 1
+	// Coupling is the correlation, in [0, 1], between the log amplitudes of
+	// C4 pre-tone beta and Pz post-tone delta.
+	Coupling float64
+	// Channels, when not nil, lists the channels to simulate (a subset of
+	// ChannelNames, in that order); the others are left out and their noise
+	// is never drawn, so a subset is not the same draw as the full set.
+	Channels []string
 }
 
 // Epochs returns the demo cut into epochs around every tone, as the demo
@@ -78,24 +92,42 @@ func index(name string) int {
 	panic("demo: no channel " + name)
 }
 
-func generate() *data.Recording {
-	rng := rand.New(rand.NewPCG(20261201, 180))
+// Simulate generates a session of the demo's scenario with every planted
+// effect, varied by o. It panics on Tones < 1 or a Coupling outside [0, 1]
+// (a programming error).
+func Simulate(o Options) *data.Recording {
+	if o.Tones < 1 || !(o.Coupling >= 0 && o.Coupling <= 1) {
+		panic("demo: bad options")
+	}
+	rng := rand.New(rand.NewPCG(o.Seed, uint64(o.Tones)))
 	// Tone times: the first at 4 s, then every 3 to 4 s.
-	onsets := make([]float64, NTones)
+	onsets := make([]float64, o.Tones)
 	t := 4.0
 	for k := range onsets {
 		onsets[k] = math.Round(t*Rate) / Rate
 		t += 3 + rng.Float64()
 	}
-	dur := math.Ceil((onsets[NTones-1]+5)/16) * 16
+	dur := math.Ceil((onsets[o.Tones-1]+5)/16) * 16
 	n := int(dur * Rate)
 	nch := len(ChannelNames)
+	keep := make([]bool, nch)
+	for c := range keep {
+		keep[c] = o.Channels == nil
+	}
+	for _, name := range o.Channels {
+		keep[index(name)] = true
+	}
 	sig := make([][]float64, nch)
 	for c := range sig {
-		sig[c] = pink(rng, n, 8)
+		if keep[c] {
+			sig[c] = pink(rng, n, 8)
+		}
 	}
 	add := func(name string, gain float64, s []float64) {
 		d := sig[index(name)]
+		if d == nil {
+			return // a channel left out
+		}
 		for i, v := range s {
 			d[i] += gain * v
 		}
@@ -105,8 +137,8 @@ func generate() *data.Recording {
 	beta := make([]float64, n)
 	delta := make([]float64, n)
 	fzDelta := make([]float64, n)
-	events := make([]data.Event, NTones)
-	rc := CouplingLogAmp
+	events := make([]data.Event, o.Tones)
+	rc := o.Coupling
 	for k, on := range onsets {
 		z1, z2, z3 := rng.NormFloat64(), rng.NormFloat64(), rng.NormFloat64()
 		a := 5 * math.Exp(0.5*z1)
@@ -153,6 +185,9 @@ func generate() *data.Recording {
 
 	r := &data.Recording{Name: "demo", Format: "simulated", Rate: Rate, Events: events}
 	for c, name := range ChannelNames {
+		if !keep[c] {
+			continue
+		}
 		r.Channels = append(r.Channels, data.Channel{Name: name, Type: "EEG", Unit: "uV"})
 		s := make([]float32, n)
 		for i, v := range sig[c] {

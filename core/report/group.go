@@ -116,6 +116,11 @@ type groupTest struct {
 // and Welch's (1947) t on the two sets of z values (stats.WelchT), with
 // p_method "welch-t" and the Welch–Satterthwaite df.
 //
+// When the recordings' rows of an analysis name a correction (fdr or
+// bonferroni), its group rows get q and correction too, each family
+// corrected on its own: the pooled rows, each group's rows, and the
+// difference rows (correctGroupRows).
+//
 // level is the interval's coverage, in (0, 1), for example 0.95. An error
 // is returned for a bad level, a groupable row without a recording, the
 // same test twice in one recording, an r outside [−1, 1], a recording
@@ -208,6 +213,7 @@ func GroupRows(rows []Row, groups map[string]string, level float64) ([]Row, erro
 		}
 		out = append(out, diffRow(gt, labels, zs, undef))
 	}
+	correctGroupRows(rows, out)
 	return out, nil
 }
 

@@ -34,6 +34,13 @@ FILES = {
                     "VEOG\tVEOG\tuV\t0.1\t100\tn/a\tn/a\n"
                     "FDI\tEMG\tuV\t10\t500\tBAD\tn/a\n",
     "channels-minimal.tsv": "name\ttype\tunits\nMEG0111\tMEGMAG\tfT\nMEG0112\tMEGGRADPLANAR\tfT/cm\n",
+    # In the style of the participants.tsv example of the BIDS specification (from memory).
+    "participants.tsv": "participant_id\tage\tsex\tgroup\n"
+                        "sub-01\t34\tF\tcontrol\n"
+                        "sub-02\tn/a\tM\tpatient\n"
+                        "sub-03\t29\tn/a\tpatient\n",
+    "participants-header-only.tsv": "participant_id\n",
+    "participants-crlf.tsv": "\ufeffparticipant_id\tGroup\r\nsub-01\tA\r\n\r\nsub-02\tB\r\n",
 }
 
 INVALID = {
@@ -51,6 +58,11 @@ INVALID = {
     "invalid-channels-dup.tsv": "name\ttype\tunits\nFz\tEEG\tuV\nCz\tEEG\tuV\nFz\tEOG\tuV\n",
     "invalid-channels-ragged.tsv": "name\ttype\tunits\nFz\tEEG\tuV\textra\n",
     "invalid-channels-name.tsv": "name\ttype\tunits\nn/a\tEEG\tuV\n",
+    "invalid-participants-first.tsv": "age\tparticipant_id\n30\tsub-01\n",
+    "invalid-participants-dup.tsv": "participant_id\tgroup\nsub-01\tA\nsub-01\tB\n",
+    "invalid-participants-id.tsv": "participant_id\tgroup\n01\tA\n",
+    "invalid-participants-label.tsv": "participant_id\tgroup\nsub-01_a\tA\n",
+    "invalid-participants-ragged.tsv": "participant_id\tgroup\nsub-01\tA\textra\n",
 }
 
 
@@ -91,15 +103,28 @@ def channels(text):
     return out
 
 
+def participants(text):
+    """participant_id first; labels without "sub-"; n/a and empty cells left out."""
+    hdr, rows = read_table(text)
+    out = {"columns": hdr[1:], "labels": [], "values": {}}
+    for r in rows:
+        label = r[0][len("sub-"):]
+        out["labels"].append(label)
+        out["values"][label] = {h: v for h, v in zip(hdr[1:], r[1:]) if v not in ("n/a", "")}
+    return out
+
+
 def main():
     ref = {"generator": "testdata/bids/make_ref.py", "python": sys.version.split()[0],
-           "events": {}, "channels": {}}
+           "events": {}, "channels": {}, "participants": {}}
     for name, text in {**FILES, **INVALID}.items():
         with open(os.path.join(HERE, name), "wb") as f:
             f.write(text.encode("utf-8"))
     for name, text in FILES.items():
         if name.startswith("events"):
             ref["events"][name] = events(text)
+        elif name.startswith("participants"):
+            ref["participants"][name] = participants(text)
         else:
             ref["channels"][name] = channels(text)
     with open(os.path.join(HERE, "ref.json"), "w") as f:

@@ -147,6 +147,11 @@ func TestInvalid(t *testing.T) {
 		{"invalid-electrodes-text.tsv", `bids: invalid-electrodes-text.tsv:2:3: y of electrode "Fz" is "abc", not a finite number`},
 		{"invalid-coordsystem-units.json", `bids: invalid-coordsystem-units.json (EEGCoordinateUnits): "inch" is not m, cm or mm`},
 		{"invalid-coordsystem-syntax.json", "bids: invalid-coordsystem-syntax.json: offset 23: not valid JSON: unexpected end of JSON input"},
+		{"invalid-participants-first.tsv", `bids: invalid-participants-first.tsv:1:1: the first column must be participant_id, found "age"`},
+		{"invalid-participants-dup.tsv", `bids: invalid-participants-dup.tsv:3:1: participant "sub-01" is listed twice (first on line 2)`},
+		{"invalid-participants-id.tsv", `bids: invalid-participants-id.tsv:2:1: participant_id "01" is not sub-<label> with an alphanumeric label`},
+		{"invalid-participants-label.tsv", `bids: invalid-participants-label.tsv:2:1: participant_id "sub-01_a" is not sub-<label> with an alphanumeric label`},
+		{"invalid-participants-ragged.tsv", "bids: invalid-participants-ragged.tsv:2:3: row has 3 fields; the header has 2"},
 	}
 	listed := map[string]bool{}
 	for _, tc := range cases {
@@ -155,6 +160,12 @@ func TestInvalid(t *testing.T) {
 			var err error
 			var got any
 			switch {
+			case strings.HasPrefix(tc.file, "invalid-participants"):
+				var p *Participants
+				p, err = ReadParticipants(openTest(t, tc.file))
+				if p != nil {
+					got = p
+				}
 			case strings.HasPrefix(tc.file, "invalid-electrodes"):
 				var es []Electrode
 				es, err = ReadElectrodes(openTest(t, tc.file))
