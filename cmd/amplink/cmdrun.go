@@ -1,7 +1,6 @@
 package main
 
 import (
-	"bytes"
 	"context"
 	"errors"
 	"flag"
@@ -204,36 +203,19 @@ func writeOutputs(dir string, res *report.Results) error {
 		return err
 	}
 	defer os.RemoveAll(stage)
-	write := func(name string, fill func(w io.Writer) error) error {
-		var b bytes.Buffer
-		if err := fill(&b); err != nil {
-			return err
-		}
-		p := filepath.Join(stage, name)
+	// the same files, in the same layout, as the page's archive
+	files, err := report.Outputs(res)
+	if err != nil {
+		return err
+	}
+	for _, f := range files {
+		p := filepath.Join(stage, filepath.FromSlash(f.Name))
 		if err := os.MkdirAll(filepath.Dir(p), 0o755); err != nil {
 			return err
 		}
-		return os.WriteFile(p, b.Bytes(), 0o644)
-	}
-	if err := write("results.json", func(w io.Writer) error { return report.WriteJSON(w, res) }); err != nil {
-		return err
-	}
-	if err := write("recipe.json", func(w io.Writer) error { _, err := w.Write(res.Recipe); return err }); err != nil {
-		return err
-	}
-	for i := range res.Maps {
-		m := &res.Maps[i]
-		if err := write(filepath.Join("maps", report.SafeName(m.Name, '_')+".csv"), func(w io.Writer) error { return report.WriteMapCSV(w, m) }); err != nil {
+		if err := os.WriteFile(p, f.Data, 0o644); err != nil {
 			return err
 		}
-	}
-	for _, f := range res.Figures {
-		if err := write(filepath.Join("figures", report.SafeName(f.Name, '_')+".svg"), func(w io.Writer) error { _, err := io.WriteString(w, f.SVG); return err }); err != nil {
-			return err
-		}
-	}
-	if err := write("results.csv", func(w io.Writer) error { return report.WriteCSV(w, res) }); err != nil {
-		return err
 	}
 	// Move into place: everything but results.csv first.
 	for _, sub := range []string{"maps", "figures"} {
