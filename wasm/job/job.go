@@ -7,13 +7,16 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"path"
 	"sort"
+	"strings"
 	"time"
 
 	"amplink/core/data"
 	"amplink/core/demo"
 	"amplink/core/format"
 	_ "amplink/core/format/all" // every reader
+	"amplink/core/format/csv"
 	"amplink/core/recipe"
 	"amplink/core/report"
 	"amplink/wasm/wire"
@@ -34,6 +37,7 @@ type Worker struct {
 	// kept between OpRun and OpFinish of the same Seq
 	plan *recipe.Plan
 	seq  int
+	name string // the recording, for results.csv's recording column
 }
 
 // Files are the files that came with a request, by file name: bytes
@@ -108,12 +112,14 @@ func (w *Worker) HandleFiles(ctx context.Context, req wire.Request, list []forma
 		post(rep, nil)
 	case wire.OpRun:
 		w.plan = nil
+		post(wire.Reply{Op: wire.OpPhase, Seq: req.Seq, Phase: wire.PhaseReading}, nil)
 		p, err := w.planFor(req, files)
 		if err != nil {
 			fail(err)
 			return
 		}
 		units := p.Units()
+		post(wire.Reply{Op: wire.OpPhase, Seq: req.Seq, Phase: wire.PhaseComputing, Total: len(units)}, nil)
 		mine := Assign(units, max(req.Workers, 1))
 		if req.Worker < 0 || req.Worker >= len(mine) {
 			fail(fmt.Errorf("worker: number %d of %d", req.Worker, len(mine)))
@@ -126,7 +132,7 @@ func (w *Worker) HandleFiles(ctx context.Context, req wire.Request, list []forma
 			fail(err)
 			return
 		}
-		w.plan, w.seq = p, req.Seq
+		w.plan, w.seq, w.name = p, req.Seq, RecordingName(req.Source)
 		post(wire.Reply{Op: wire.OpUnits, Seq: req.Seq, Total: len(units)}, [][]byte{EncodeUnits(res)})
 	case wire.OpFinish:
 		if w.plan == nil || w.seq != req.Seq {
@@ -147,17 +153,27 @@ func (w *Worker) HandleFiles(ctx context.Context, req wire.Request, list []forma
 			}
 			all = append(all, u...)
 		}
+		post(wire.Reply{Op: wire.OpPhase, Seq: req.Seq, Phase: wire.PhaseCombining}, nil)
+		t0 := time.Now()
 		res, err := w.plan.Finish(ctx, all)
 		if err != nil {
 			fail(err)
 			return
 		}
+		AddRecording(res, w.name)
+		finish := time.Since(t0)
+		post(wire.Reply{Op: wire.OpPhase, Seq: req.Seq, Phase: wire.PhasePacking}, nil)
+		t1 := time.Now()
 		rep, out, err := ResultsReply(res)
 		if err != nil {
 			fail(err)
 			return
 		}
 		rep.Seq = req.Seq
+		rep.Timings = []wire.Timing{
+			{Step: "combine (rows, maps, figures)", MS: ms(finish)},
+			{Step: "pack (csv, json, archive)", MS: ms(time.Since(t1))},
+		}
 		post(rep, out)
 	case wire.OpPower:
 		fig, err := Power(req, files)
@@ -168,6 +184,25 @@ func (w *Worker) HandleFiles(ctx context.Context, req wire.Request, list []forma
 		post(wire.Reply{Op: wire.OpPower, Seq: req.Seq, Figure: fig}, nil)
 	default:
 		fail(fmt.Errorf("worker: unknown operation %q", req.Op))
+	}
+}
+
+func ms(d time.Duration) float64 { return float64(d.Microseconds()) / 1000 }
+
+// RecordingName is the recording column's value for a source: the file's
+// base name, as `amplink run` writes it, or "demo".
+func RecordingName(src wire.Source) string {
+	if src.Demo {
+		return "demo"
+	}
+	return path.Base(strings.ReplaceAll(src.Name, "\\", "/"))
+}
+
+// AddRecording gives every row the recording column, as `amplink run`
+// does, so that `amplink merge` takes the page's results.csv.
+func AddRecording(res *report.Results, name string) {
+	for i := range res.Rows {
+		res.Rows[i].Extra = append(res.Rows[i].Extra, report.Field{Name: "recording", Value: name})
 	}
 }
 
@@ -232,11 +267,53 @@ func Open(r *recipe.Recipe, src wire.Source, files Files) (*recipe.Dataset, erro
 		}
 		ev = &e
 	}
-	ds, err := recipe.Open(r, f, ev, files)
+	// companions recognised by their content are seen under the names the
+	// core looks for beside the recording (<stem>_channels.tsv); a trials
+	// table is attached as `amplink run --trials` attaches one
+	sib := Files{}
+	for k, v := range files {
+		sib[k] = v
+	}
+	stem := recipe.Stem(src.Name)
+	if src.ChannelsName != "" {
+		c, ok := files[src.ChannelsName]
+		if !ok {
+			return nil, fmt.Errorf("worker: no bytes for %q", src.ChannelsName)
+		}
+		delete(sib, src.ChannelsName)
+		c.Name = src.ChannelsName
+		sib[stem+"_channels.tsv"] = c
+	}
+	var trials *format.File
+	if src.TrialsName != "" {
+		t, ok := files[src.TrialsName]
+		if !ok {
+			return nil, fmt.Errorf("worker: no bytes for %q", src.TrialsName)
+		}
+		trials = &t
+		delete(sib, src.TrialsName)
+		delete(sib, stem+"_trials.csv")
+		delete(sib, stem+".trials.csv")
+	}
+	ds, err := recipe.Open(r, f, ev, sib)
 	if errors.Is(err, data.ErrTooLarge) {
 		err = fmt.Errorf("%w. The page's workers hold at most %d MiB of samples each; the command-line tool (amplink run) has no such limit", err, data.MaxSampleBytes>>20)
 	}
-	return ds, err
+	if err != nil || trials == nil {
+		return ds, err
+	}
+	if ds.Epochs == nil {
+		ds.Notes = append(ds.Notes, trials.Name+" (trials table) is not used: the recording is not cut into epochs")
+		return ds, nil
+	}
+	t, err := csv.DecodeTrials(*trials)
+	if err != nil {
+		return nil, err
+	}
+	if err := ds.AttachTrials(t, trials.Name); err != nil {
+		return nil, err
+	}
+	return ds, nil
 }
 
 // Assign splits units over n workers: longest first onto the least loaded
@@ -281,15 +358,25 @@ func Assign(units []recipe.Unit, n int) [][]int {
 // never through JSON: bufs[0] is results.json and bufs[1+i] the SVG of
 // figure i. The page makes them Blobs without copying them through Go.
 func ResultsReply(res *report.Results) (wire.Reply, [][]byte, error) {
-	var c, j bytes.Buffer
-	if err := report.WriteCSV(&c, res); err != nil {
+	files, err := report.Outputs(res)
+	if err != nil {
 		return wire.Reply{}, nil, err
 	}
-	if err := report.WriteJSON(&j, res); err != nil {
+	var csvText, jsonBytes []byte
+	for _, f := range files {
+		switch f.Name {
+		case "results.csv":
+			csvText = f.Data
+		case "results.json":
+			jsonBytes = f.Data
+		}
+	}
+	var z bytes.Buffer
+	if err := report.WriteZip(&z, files); err != nil {
 		return wire.Reply{}, nil, err
 	}
-	rep := wire.Reply{Op: wire.OpResults, CSV: c.String(), Warnings: res.Warnings}
-	bufs := [][]byte{j.Bytes()}
+	rep := wire.Reply{Op: wire.OpResults, CSV: string(csvText), Warnings: res.Warnings, ResolvedRecipe: string(res.Recipe)}
+	bufs := [][]byte{jsonBytes, z.Bytes()}
 	for _, f := range res.Figures {
 		rep.Figures = append(rep.Figures, wire.Figure{Name: f.Name, Title: f.Title})
 		bufs = append(bufs, []byte(f.SVG))

@@ -1,6 +1,7 @@
 package job
 
 import (
+	"encoding/json"
 	"errors"
 	"fmt"
 
@@ -46,7 +47,7 @@ func demoDataset(r *recipe.Recipe) (*recipe.Dataset, error) {
 // and draws it with plot.TFPower, outlining the recipe's windows on that
 // channel. The seed and target windows can then be chosen on it.
 func Power(req wire.Request, files Files) (*wire.Figure, error) {
-	r, err := recipe.Parse(req.Recipe)
+	r, err := PowerRecipe(req.Recipe)
 	if err != nil {
 		return nil, err
 	}
@@ -130,4 +131,42 @@ func names(sel []string, ch string) bool {
 		}
 	}
 	return false
+}
+
+// PowerRecipe reads the settings the power map needs (epochs, spectral)
+// from a recipe whose analyses may still be unfinished: the map needs no
+// analysis, only the windows to outline of those analyses that are complete.
+// Errors in the settings themselves are reported as Parse reports them.
+func PowerRecipe(b []byte) (*recipe.Recipe, error) {
+	if r, err := recipe.Parse(b); err == nil {
+		return r, nil
+	}
+	var top map[string]any
+	if err := json.Unmarshal(b, &top); err != nil {
+		return recipe.Parse(b) // Parse names what is wrong with the JSON
+	}
+	list, _ := top["analyses"].([]any)
+	var keep []any
+	for _, a := range list {
+		top["analyses"] = []any{a}
+		one, _ := json.Marshal(top)
+		if _, err := recipe.Parse(one); err == nil {
+			keep = append(keep, a)
+		}
+	}
+	// ids must stay unique once the analyses that failed are left out
+	placeholder := len(keep) == 0
+	if placeholder {
+		keep = []any{map[string]any{"type": recipe.TypeEnvelope, "channels": "*", "freq": []any{8, 12}}}
+	}
+	top["analyses"] = keep
+	again, _ := json.Marshal(top)
+	r, err := recipe.Parse(again)
+	if err != nil {
+		return nil, err
+	}
+	if placeholder {
+		r.Analyses = nil
+	}
+	return r, nil
 }
