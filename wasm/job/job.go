@@ -15,7 +15,7 @@ import (
 	"amplink/core/data"
 	"amplink/core/demo"
 	"amplink/core/format"
-	_ "amplink/core/format/all" // every reader
+	"amplink/core/format/all" // every reader, and Recognise
 	"amplink/core/format/csv"
 	"amplink/core/recipe"
 	"amplink/core/report"
@@ -87,6 +87,33 @@ func (w *Worker) HandleFiles(ctx context.Context, req wire.Request, list []forma
 	}
 	switch req.Op {
 	case wire.OpDescribe, wire.OpDemo:
+		var recognised []string
+		var recipeText string
+		if req.Op == wire.OpDescribe && !req.Source.Demo && (req.Source.Name == "" || len(req.Roles) > 0) {
+			roles := req.Roles
+			if len(roles) != len(list) {
+				roles = Recognise(list)
+			}
+			src, rf, err := SourceFor(list, roles)
+			if err != nil {
+				fail(err)
+				return
+			}
+			if rf != nil {
+				b, err := io.ReadAll(io.NewSectionReader(rf.R, 0, min(rf.Size, 1<<20)))
+				if err != nil {
+					fail(fmt.Errorf("%s: %w", rf.Name, err))
+					return
+				}
+				recipeText = string(b)
+			}
+			req.Source, recognised = src, roles
+			if src.Name == "" {
+				// a recipe on its own: its settings, and no recording
+				post(wire.Reply{Op: wire.OpSummary, Seq: req.Seq, RecipeText: recipeText, Roles: roles, Source: &src}, nil)
+				return
+			}
+		}
 		var r *recipe.Recipe
 		if len(req.Recipe) > 0 {
 			var err error
@@ -105,7 +132,11 @@ func (w *Worker) HandleFiles(ctx context.Context, req wire.Request, list []forma
 			fail(err)
 			return
 		}
-		rep := wire.Reply{Op: wire.OpSummary, Seq: req.Seq, Summary: sum}
+		rep := wire.Reply{Op: wire.OpSummary, Seq: req.Seq, Summary: sum, RecipeText: recipeText}
+		if recognised != nil {
+			src := req.Source
+			rep.Roles, rep.Source = recognised, &src
+		}
 		if req.Source.Demo {
 			rep.Recipe = demo.Recipe()
 		}
@@ -185,6 +216,63 @@ func (w *Worker) HandleFiles(ctx context.Context, req wire.Request, list []forma
 	default:
 		fail(fmt.Errorf("worker: unknown operation %q", req.Op))
 	}
+}
+
+// headLen is how much of each file Recognise looks at.
+const headLen = 64 << 10
+
+// Recognise says what each file is from its first bytes (all.Recognise).
+func Recognise(files []format.File) []string {
+	out := make([]string, len(files))
+	for i, f := range files {
+		head := make([]byte, min(f.Size, headLen))
+		n, err := f.R.ReadAt(head, 0)
+		if err != nil && err != io.EOF {
+			out[i] = string(all.Unknown)
+			continue
+		}
+		out[i] = string(all.Recognise(head[:n], f.Name))
+	}
+	return out
+}
+
+// SourceFor makes the source from files and what each is: the recording
+// with its events, channels and trials tables (the other files stay
+// available as siblings, such as a float32 epochs' sidecar), and the
+// recipe file if there is one. Exactly one file must be a recording.
+func SourceFor(files []format.File, roles []string) (wire.Source, *format.File, error) {
+	var src wire.Source
+	var rf *format.File
+	var recs []string
+	for i, f := range files {
+		switch all.Role(roles[i]) {
+		case all.Recording:
+			recs = append(recs, f.Name)
+		case all.Events:
+			src.EventsName = f.Name
+		case all.Channels:
+			src.ChannelsName = f.Name
+		case all.Trials:
+			src.TrialsName = f.Name
+		case all.Recipe:
+			rf = &files[i]
+		}
+	}
+	switch {
+	case len(recs) == 1:
+		src.Name = recs[0]
+	case len(recs) == 0 && rf != nil:
+		return src, rf, nil // a recipe alone: settings, no recording
+	case len(recs) == 0:
+		var names []string
+		for i, f := range files {
+			names = append(names, fmt.Sprintf("%s (%s)", f.Name, roles[i]))
+		}
+		return src, nil, fmt.Errorf("none of these files is a recording: %s", strings.Join(names, ", "))
+	default:
+		return src, nil, fmt.Errorf("%s are all recordings; the page analyses one at a time (amplink run takes several)", strings.Join(recs, ", "))
+	}
+	return src, rf, nil
 }
 
 func ms(d time.Duration) float64 { return float64(d.Microseconds()) / 1000 }

@@ -460,3 +460,33 @@ func TestCompanionsByContent(t *testing.T) {
 		t.Errorf("notes %v do not name montage.txt", ds.Notes)
 	}
 }
+
+// TestDescribeRecognises: files sent without roles are recognised by their
+// content; the reply says what each was taken as, and the roles the user
+// sets instead are followed.
+func TestDescribeRecognises(t *testing.T) {
+	rec := trialsCSV()
+	trials := []byte("trial,rt\n1,0.5\n")
+	recipeText := []byte(smallRecipe)
+	names := []string{"x.dat", "y.dat", "z.dat"}
+	bufs := [][]byte{trials, rec, recipeText}
+	var w Worker
+	var rp replies
+	w.Handle(context.Background(), wire.Request{Op: wire.OpDescribe, Seq: 1}, names, bufs, rp.post)
+	rep, _ := rp.last(t, wire.OpSummary)
+	if want := []string{"trials", "recording", "recipe"}; !reflect.DeepEqual(rep.Roles, want) {
+		t.Fatalf("roles %v, want %v", rep.Roles, want)
+	}
+	if rep.Source == nil || rep.Source.Name != "y.dat" || rep.Source.TrialsName != "x.dat" {
+		t.Fatalf("source %+v", rep.Source)
+	}
+	if rep.RecipeText != smallRecipe {
+		t.Errorf("recipe text %q", rep.RecipeText)
+	}
+	// the user says the first file is a recording too: two recordings
+	rp = replies{}
+	w.Handle(context.Background(), wire.Request{Op: wire.OpDescribe, Seq: 2, Roles: []string{"recording", "recording", "recipe"}}, names, bufs, rp.post)
+	if rep, _ := rp.last(t, wire.OpError); !strings.Contains(rep.Error, "one at a time") {
+		t.Errorf("two recordings: %q", rep.Error)
+	}
+}

@@ -64,6 +64,11 @@ type Request struct {
 
 	// OpPower: the channel to show.
 	Channel string `json:"channel,omitempty"`
+
+	// OpDescribe: what each file is (see all.Roles), in the order of the
+	// files sent. Empty with an empty Source.Name: the worker recognises
+	// each file by its content and replies with Roles and the Source.
+	Roles []string `json:"roles,omitempty"`
 }
 
 // Figure is one SVG figure.
@@ -83,6 +88,11 @@ type Reply struct {
 	// also the demo recipe.
 	Summary json.RawMessage `json:"summary,omitempty"`
 	Recipe  json.RawMessage `json:"recipe,omitempty"`
+	// and, for files sent with OpDescribe: what each was taken as, the
+	// source made of them, and the text of a recipe among them
+	Roles      []string `json:"roles,omitempty"`
+	Source     *Source  `json:"source,omitempty"`
+	RecipeText string   `json:"recipeText,omitempty"`
 
 	// OpPhase: the phase; with Done and Total when it counts.
 	Phase string `json:"phase,omitempty"`
