@@ -279,14 +279,15 @@ func showSelection(x0, y0, x1, y1 float64, visible bool) {
 	st.Set("height", px(abs(y1-y0)))
 }
 
-// bodyRows is the number of rows in the table body with the given id, or
+// bodyRows is the number of data rows in the table body with the given id, or
 // −1 when there is none.
 func bodyRows(id string) int {
 	el := js.Global().Get("document").Call("getElementById", id)
 	if !el.Truthy() {
 		return -1
 	}
-	return el.Get("rows").Length()
+	// result rows only, not the analyses' heading rows
+	return el.Call("querySelectorAll", "tr:not(.group)").Length()
 }
 
 // setBodyHTML replaces the contents of the element with the given id.
