@@ -369,3 +369,15 @@ func afterTask(d time.Duration, fn func()) {
 	})
 	js.Global().Call("setTimeout", f, d.Milliseconds())
 }
+
+// focusField scrolls the element with the given id into view and focuses it.
+func focusField(id string) {
+	el := js.Global().Get("document").Call("getElementById", id)
+	if !el.Truthy() {
+		return
+	}
+	opts := js.Global().Get("Object").New()
+	opts.Set("block", "center")
+	el.Call("scrollIntoView", opts)
+	el.Call("focus")
+}

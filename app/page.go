@@ -51,6 +51,8 @@ type Page struct {
 	// running
 	pendingRun bool // a run was asked for before the recording was ready
 	phase      string
+	phaseDone  int // a counted phase other than computing (drawing n of m)
+	phaseTotal int
 	timings    []wire.Timing
 	runErrKey  string // the field the run's error is about ("" if none)
 	seq        int
@@ -162,6 +164,7 @@ func (p *Page) reveal(ctx goapp.Context) {
 		p.shownFigs++
 	default:
 		p.drawing = false
+		p.phase = ""
 		p.stateAttr = "done"
 		markTime("amplink-done")
 		return
@@ -270,6 +273,10 @@ func (p *Page) handleReply(k int, rep wire.Reply, bufs []buffer) {
 		p.takeSummary(rep)
 	case wire.OpPhase:
 		p.phase = rep.Phase
+		p.phaseDone, p.phaseTotal = 0, 0
+		if rep.Phase != wire.PhaseComputing {
+			p.phaseDone, p.phaseTotal = rep.Done, rep.Total
+		}
 		if rep.Phase == wire.PhaseComputing && rep.Total > 0 {
 			p.total = rep.Total
 		}
@@ -408,6 +415,7 @@ func (p *Page) finishRun(rep wire.Reply, bufs []buffer) {
 	p.sortCol, p.sortDesc = -1, false
 	p.figures = rep.Figures
 	p.bigFig = -1
+	p.total = max(p.total, 1)
 	p.warnings = rep.Warnings
 	p.status = fmt.Sprintf("Done: %d results in %.1f s.", len(t.Rows), elapsed/1000)
 	p.shownRows, p.shownFigs = 0, 0
@@ -744,7 +752,11 @@ func (p *Page) applyWindow(t0, t1, f0, f1 float64) {
 	var which string
 	fmt.Sscanf(strings.ReplaceAll(target, ".", " "), "analyses %d %s", &n, &which)
 	p.dragMsg = fmt.Sprintf("Set the %s window of analysis %d to %s–%s s, %s–%s Hz.", which, n+1, round(t0, 3), round(t1, 3), round(f0, 1), round(f1, 1))
+	p.form.touch(target + ".time.0")
 	p.validate()
+	// the map again, with the windows outlined where they now are (the
+	// dragged rectangle stays drawn meanwhile)
+	p.requestPower()
 }
 
 // ---- the form ----
@@ -946,7 +958,7 @@ func (p *Page) onReload(ctx goapp.Context, e goapp.Event) {
 func (p *Page) sortedDownloads() []string {
 	var names []string
 	for n := range p.urls {
-		if n != "results.csv" && n != "results.json" && n != "recipe.json" {
+		if n != "results.csv" && n != "results.json" && n != "recipe.json" && n != archiveName {
 			names = append(names, n)
 		}
 	}

@@ -490,3 +490,19 @@ func TestDescribeRecognises(t *testing.T) {
 		t.Errorf("two recordings: %q", rep.Error)
 	}
 }
+
+// TestPowerWindowsOnce: the demo's four trial-window analyses share one
+// seed window on C4; it is outlined once, with every label in one line.
+func TestPowerWindowsOnce(t *testing.T) {
+	fig, err := Power(wire.Request{Op: wire.OpPower, Source: wire.Source{Demo: true}, Recipe: demo.Recipe(), Channel: "C4"}, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// each box has a <title> and a text label
+	if n := strings.Count(fig.SVG, "<title>beta-to-delta seed"); n != 1 {
+		t.Errorf("the beta-to-delta seed window is outlined %d times", n)
+	}
+	if !strings.Contains(fig.SVG, "beta-to-delta seed, beta-to-delta-by-outcome seed") {
+		t.Error("coinciding windows are not labelled together")
+	}
+}

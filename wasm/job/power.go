@@ -105,7 +105,7 @@ func Power(req wire.Request, files Files) (*wire.Figure, error) {
 			if w.win == nil || !names(w.win.Channel, req.Channel) {
 				continue
 			}
-			wins = append(wins, plot.Window{Label: w.label, T0: w.win.Time[0], T1: w.win.Time[1], F0: w.win.Freq[0], F1: w.win.Freq[1]})
+			wins = addWindow(wins, plot.Window{Label: w.label, T0: w.win.Time[0], T1: w.win.Time[1], F0: w.win.Freq[0], F1: w.win.Freq[1]})
 		}
 	}
 	unit := "µV²"
@@ -169,4 +169,18 @@ func PowerRecipe(b []byte) (*recipe.Recipe, error) {
 		r.Analyses = nil
 	}
 	return r, nil
+}
+
+// addWindow adds a window to outline, or its label to a window already
+// there with the same bounds, so coinciding windows get one box and one
+// label ("a1 seed, a2 seed") rather than labels printed over each other.
+func addWindow(wins []plot.Window, w plot.Window) []plot.Window {
+	for i := range wins {
+		v := &wins[i]
+		if v.T0 == w.T0 && v.T1 == w.T1 && v.F0 == w.F0 && v.F1 == w.F1 {
+			v.Label += ", " + w.Label
+			return wins
+		}
+	}
+	return append(wins, w)
 }
