@@ -49,3 +49,4 @@ func markTime(string)   {}
 func focusField(string) {}
 
 func afterTask(d time.Duration, fn func()) { time.AfterFunc(d, fn) }
+func bufferText(buffer) string             { return "" }

@@ -381,3 +381,11 @@ func focusField(id string) {
 	el.Call("scrollIntoView", opts)
 	el.Call("focus")
 }
+
+// bufferText decodes an ArrayBuffer of UTF-8 text.
+func bufferText(buf js.Value) string {
+	if !buf.Truthy() {
+		return ""
+	}
+	return js.Global().Get("TextDecoder").New().Call("decode", js.Global().Get("Uint8Array").New(buf)).String()
+}

@@ -76,6 +76,7 @@ type Page struct {
 	urls     map[string]string // download name → blob URL
 	identity string
 	bigFig   int               // the figure shown large, −1 for none
+	bigSVG   string            // its SVG, drawn inline (cell values on hover)
 	groups   map[string]string // analysis id → its question in words
 	notes    map[string]string // analysis id → which p its rows report
 

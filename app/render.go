@@ -682,7 +682,7 @@ func (p *Page) renderResults() goapp.UI {
 			goapp.Range(p.warnings).Slice(func(i int) goapp.UI { return goapp.Li().Text(Human(p.warnings[i])) }),
 		)),
 		p.renderBig(big),
-		goapp.If(len(figs) > 0, goapp.P().Class("hint").Text(fmt.Sprintf("%d figures: select one to see it at full width.", len(p.figures)))),
+		goapp.If(len(figs) > 0, goapp.P().Class("hint").Text(fmt.Sprintf("%d figures: select one to see it at full width, where pointing at a cell shows its value. In envelope figures, \"B ⊥ A\" is B's band signal orthogonalised to A's: the part of B that leakage from A cannot explain.", len(p.figures)))),
 		goapp.Div().ID("figures").Class("thumbs").Body(
 			goapp.Range(figs).Slice(func(i int) goapp.UI {
 				f := figs[i]
@@ -714,7 +714,9 @@ func (p *Page) renderBig(f *wire.Figure) goapp.UI {
 			goapp.Button().ID("figure-close").Class("quiet").Text("Back to the thumbnails").OnClick(p.onFigure(-1)),
 			goapp.A().Class("button quiet").Href(p.urls[f.Name+".svg"]).Download(f.Name+".svg").Text("Download this figure (SVG)"),
 		),
-		goapp.Img().Class("svglarge").Src(p.urls[f.Name+".svg"]).Alt(f.Title),
+		// drawn inline, so a cell's title (its value) shows on hover
+		goapp.If(p.bigSVG != "", goapp.Div().Class("svglarge").Body(goapp.Raw(svgOnly(p.bigSVG)))),
+		goapp.If(p.bigSVG == "", goapp.Img().Class("svglarge").Src(p.urls[f.Name+".svg"]).Alt(f.Title)),
 		goapp.FigCaption().Text(f.Title),
 	)
 }
@@ -722,7 +724,10 @@ func (p *Page) renderBig(f *wire.Figure) goapp.UI {
 // onFigure shows figure i large (−1: the thumbnails only).
 func (p *Page) onFigure(i int) goapp.EventHandler {
 	return func(ctx goapp.Context, e goapp.Event) {
-		p.bigFig = i
+		p.bigFig, p.bigSVG = i, ""
+		if i >= 0 && i < len(p.figBufs) {
+			p.bigSVG = bufferText(p.figBufs[i])
+		}
 		if i >= 0 {
 			ctx.Defer(func(goapp.Context) { focusField("figure-close") })
 		}

@@ -936,7 +936,7 @@ func TestBrowser(t *testing.T) {
 			if _, err := chromedp.Run(b.ctx, chromedp.Evaluate[bool](`document.querySelector(".thumb").click(), true`)); err != nil {
 				t.Fatal(err)
 			}
-			if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`(() => { const i = document.querySelector("#figure-large img"); return !!i && i.complete && i.naturalWidth > 100 && i.getBoundingClientRect().width > 800; })()`, chromedp.WithPollingTimeout(20*time.Second))); err != nil {
+			if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`(() => { const i = document.querySelector("#figure-large svg"); return !!i && i.getBoundingClientRect().width > 800 && !!i.querySelector("title"); })()`, chromedp.WithPollingTimeout(20*time.Second))); err != nil {
 				t.Errorf("the first figure did not draw large: %v", err)
 			}
 			b.shot(t, "figure-large")
