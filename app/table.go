@@ -167,7 +167,8 @@ func RowsHTML(rows [][]string, o Rows) string {
 				name = o.Header[c]
 			}
 			shown := Cell(name, raw)
-			if shown != raw {
+			if shown != raw || idCols[name] && len(raw) > 10 {
+				// a rounded number, or a name the narrow sticky column may cut
 				b.WriteString(`<td title="` + html.EscapeString(raw) + `">`)
 			} else {
 				b.WriteString("<td>")
@@ -191,6 +192,10 @@ func index(h []string, name string) int {
 	}
 	return -1
 }
+
+// idCols are the identifying columns, which stay in view (narrow) when
+// the table scrolls sideways.
+var idCols = map[string]bool{"analysis": true, "type": true, "seed": true, "target": true}
 
 // threeDecimals are the columns shown to 3 decimals: correlations and
 // their intervals and differences.
