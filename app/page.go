@@ -68,17 +68,18 @@ type Page struct {
 	stateAttr  string
 
 	// results
-	table    Table
-	sortCol  int
-	sortDesc bool
-	figures  []wire.Figure
-	warnings []string
-	urls     map[string]string // download name → blob URL
-	identity string
-	bigFig   int               // the figure shown large, −1 for none
-	bigSVG   string            // its SVG, drawn inline (cell values on hover)
-	groups   map[string]string // analysis id → its question in words
-	notes    map[string]string // analysis id → which p its rows report
+	table     Table
+	sortCol   int
+	sortDesc  bool
+	figures   []wire.Figure
+	warnings  []string
+	urls      map[string]string // download name → blob URL
+	identity  string
+	bigFig    int               // the figure shown large, −1 for none
+	bigSVG    string            // its SVG, drawn inline (cell values on hover)
+	showTruth bool              // the demo's planted effects are shown
+	groups    map[string]string // analysis id → its question in words
+	notes     map[string]string // analysis id → which p its rows report
 
 	// check plot
 	powerSeq   int
@@ -112,7 +113,9 @@ type Page struct {
 const (
 	stages      = 6
 	rowsPerTick = 100
-	revealDelay = 4 * time.Millisecond
+	// cellsPerTick bounds the cells written into the table in one task
+	cellsPerTick = 1200
+	revealDelay  = 4 * time.Millisecond
 )
 
 // later runs fn on the page after the browser has had its turn: from a
@@ -149,7 +152,10 @@ func (p *Page) reveal(ctx goapp.Context) {
 			setBodyHTML(resultsBody, "")
 			p.shownRows = 0
 		}
-		end := min(len(p.sorted), p.shownRows+rowsPerTick)
+		// a bounded number of cells per task, so a table with every
+		// column shown is written in shorter steps
+		per := max(10, min(rowsPerTick, cellsPerTick/max(1, len(p.visible()))))
+		end := min(len(p.sorted), p.shownRows+per)
 		o := Rows{Header: p.table.Header, Cols: p.visible(), Group: p.sortCol < 0, Heads: p.groups, Notes: p.notes}
 		if p.shownRows > 0 {
 			if ac := p.table.Col("analysis"); ac >= 0 && ac < len(p.sorted[p.shownRows-1]) {
@@ -359,6 +365,7 @@ func (p *Page) takeSummary(rep wire.Reply) {
 		if len(s.Channels) > 0 && p.powerChan == "" {
 			p.powerChan = s.Channels[0]
 		}
+		p.showTruth = false
 	}
 	// the form follows in its own task: drawing a long recipe and the
 	// summary together would make one long one
@@ -384,6 +391,10 @@ func (p *Page) takeSummary(rep wire.Reply) {
 		if p.summary == nil {
 			p.validate()
 			return
+		}
+		// the demo's explanation in a task of its own, after the form
+		if p.demo {
+			p.later(func(goapp.Context) { p.showTruth = true })
 		}
 		p.suggestEpochs()
 		p.validate()

@@ -30,7 +30,7 @@ func (p *Page) Render() goapp.UI {
 				goapp.Text("Do not use its results for clinical decisions.")),
 			goapp.P().Text("Your data stays on this computer: files are read and analysed inside this browser and nothing is uploaded. Patient data must still be handled under your institution's rules."),
 		),
-		&loadView{P: p, Summary: p.summary, Loading: p.loading, Msg: p.loadMsg, Err: p.loadErr},
+		&loadView{P: p, Summary: p.summary, Loading: p.loading, Msg: p.loadMsg, Err: p.loadErr, Truth: p.showTruth, Files: len(p.roles)},
 		goapp.If(p.stage >= 2, &checkView{P: p, Summary: p.summary, SVG: p.powerSVG, Err: p.powerErr, Busy: p.powerBusy,
 			Channel: p.powerChan, Target: p.dragTarget, Msg: p.dragMsg, FormRev: p.form.rev, Form: p.form}),
 		goapp.If(p.stage >= 3, &defineView{P: p, Form: p.form, Rev: p.form.rev, FieldKey: p.fieldKey, FieldErr: p.fieldErr,
@@ -54,6 +54,8 @@ type loadView struct {
 	Loading bool
 	Msg     string
 	Err     string
+	Truth   bool
+	Files   int
 }
 
 func (v *loadView) Render() goapp.UI { return v.P.renderLoad() }
@@ -251,7 +253,7 @@ func (p *Page) renderSummary() goapp.UI {
 		goapp.If(len(s.Notes) > 0, goapp.Ul().Class("warnings").Body(
 			goapp.Range(s.Notes).Slice(func(i int) goapp.UI { return goapp.Li().Text(s.Notes[i]) }),
 		)),
-		goapp.If(p.demo, goapp.Div().ID("demo-truth").Class("truth").Body(
+		goapp.If(p.demo && p.showTruth, goapp.Div().ID("demo-truth").Class("truth").Body(
 			goapp.H3().Text("What the demo holds, and what a correct analysis finds"),
 			goapp.Ul().Body(goapp.Range(demoTruth).Slice(func(i int) goapp.UI { return goapp.Li().Text(demoTruth[i]) })),
 			goapp.P().Class("hint").Text("The demo's recipe is filled in below; run it and check the table against these."),
