@@ -1400,6 +1400,19 @@ func TestBrowser(t *testing.T) {
 			t.Errorf("an unknown channel was not caught while typing: %v", err)
 		}
 		b.setField(t, "f-analyses-0-seed-channel", "C4")
+		// a new analysis, and a switched type, mark nothing the user has
+		// not typed in yet
+		b.click(t, "add-window")
+		n, _ := chromedp.Run(b.ctx, chromedp.Evaluate[int](`document.querySelectorAll("[id^='f-analyses-'][id$='-type']").length`))
+		last := fmt.Sprintf("f-analyses-%d-type", n-1)
+		b.setField(t, last, "comodulogram")
+		time.Sleep(300 * time.Millisecond)
+		if s := b.text(t, ".field.invalid .why"); s != "" {
+			t.Errorf("a fresh analysis shows %q before anything was typed", s)
+		}
+		if has, _ := chromedp.Run(b.ctx, chromedp.Evaluate[bool](fmt.Sprintf(`!!document.getElementById("f-analyses-%d-covariates")`, n-1))); has {
+			t.Error("a cross-frequency map offers covariates")
+		}
 	})
 
 	t.Run("link", func(t *testing.T) {
