@@ -115,6 +115,7 @@ const (
 	rowsPerTick = 100
 	// cellsPerTick bounds the cells written into the table in one task
 	cellsPerTick = 1200
+	figsPerTick  = 8
 	revealDelay  = 4 * time.Millisecond
 )
 
@@ -165,10 +166,12 @@ func (p *Page) reveal(ctx goapp.Context) {
 		appendBodyHTML(resultsBody, RowsHTML(p.sorted[p.shownRows:end], o))
 		p.shownRows = end
 	case p.shownFigs < len(p.figures):
-		if p.shownFigs < len(p.figBufs) {
-			p.urls[p.figures[p.shownFigs].Name+".svg"] = bufferURL(p.figBufs[p.shownFigs], "image/svg+xml")
+		// a few figures per task: each addition redraws the list
+		for end := min(len(p.figures), p.shownFigs+figsPerTick); p.shownFigs < end; p.shownFigs++ {
+			if p.shownFigs < len(p.figBufs) {
+				p.urls[p.figures[p.shownFigs].Name+".svg"] = bufferURL(p.figBufs[p.shownFigs], "image/svg+xml")
+			}
 		}
-		p.shownFigs++
 	default:
 		p.drawing = false
 		p.phase = ""

@@ -601,6 +601,17 @@ func writeTrialsCSV(t *testing.T, dir string) (string, []byte) {
 
 func sq(x float64) float64 { return x * x }
 
+// loadDemo loads the demo and waits until it is ready (the state may
+// already read "loaded" from the recording before, so the summary is
+// checked too).
+func (b *browser) loadDemo(t *testing.T) {
+	t.Helper()
+	b.click(t, "load-demo")
+	if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`document.getElementById("status").dataset.state === "loaded" && (document.querySelector("#summary") || {textContent: ""}).textContent.includes("the demo:") && !document.getElementById("run-analysis").disabled`, chromedp.WithPollingTimeout(60*time.Second))); err != nil {
+		t.Fatalf("the demo did not load: %v", err)
+	}
+}
+
 // shot keeps a picture of the page as DIR/NAME.png when AMPLINK_SHOTS=DIR
 // is set, to look at.
 func (b *browser) shot(t *testing.T, name string) {
@@ -1278,8 +1289,7 @@ func TestBrowser(t *testing.T) {
 	})
 
 	t.Run("cancel", func(t *testing.T) {
-		b.click(t, "load-demo")
-		b.waitState(t, "loaded", 60*time.Second)
+		b.loadDemo(t)
 		b.setField(t, "f-analyses-0-permutations", "1000000")
 		b.origin.setPhase("analysis")
 		b.click(t, "run-analysis")
@@ -1357,8 +1367,7 @@ func TestBrowser(t *testing.T) {
 	})
 
 	t.Run("validation", func(t *testing.T) {
-		b.click(t, "load-demo")
-		b.waitState(t, "loaded", 60*time.Second)
+		b.loadDemo(t)
 		// a reversed band: the core's message appears at that field, and
 		// Run refuses until it is fixed
 		b.setField(t, "f-analyses-0-seed-freq-0", "30")
@@ -1403,7 +1412,7 @@ func TestBrowser(t *testing.T) {
 		// a new analysis, and a switched type, mark nothing the user has
 		// not typed in yet
 		b.click(t, "add-window")
-		n, _ := chromedp.Run(b.ctx, chromedp.Evaluate[int](`document.querySelectorAll("[id^='f-analyses-'][id$='-type']").length`))
+		n, _ := chromedp.Run(b.ctx, chromedp.Evaluate[int](`document.querySelectorAll(".analysis").length`))
 		last := fmt.Sprintf("f-analyses-%d-type", n-1)
 		b.setField(t, last, "comodulogram")
 		time.Sleep(300 * time.Millisecond)
@@ -1413,6 +1422,7 @@ func TestBrowser(t *testing.T) {
 		if has, _ := chromedp.Run(b.ctx, chromedp.Evaluate[bool](fmt.Sprintf(`!!document.getElementById("f-analyses-%d-covariates")`, n-1))); has {
 			t.Error("a cross-frequency map offers covariates")
 		}
+		b.click(t, "edit-analysis-0") // the first analysis open again, for the link test
 	})
 
 	t.Run("link", func(t *testing.T) {
