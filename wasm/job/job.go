@@ -391,7 +391,12 @@ func Open(r *recipe.Recipe, src wire.Source, files Files) (*recipe.Dataset, erro
 		return ds, err
 	}
 	if ds.Epochs == nil {
-		ds.Notes = append(ds.Notes, trials.Name+" (trials table) is not used: the recording is not cut into epochs")
+		if r == nil {
+			// described before any recipe: it is used once epochs are cut
+			ds.Notes = append(ds.Notes, trials.Name+": a trials table, used once the recording is cut into epochs")
+		} else {
+			ds.Notes = append(ds.Notes, trials.Name+" (trials table) is not used: the recording is not cut into epochs")
+		}
 		return ds, nil
 	}
 	t, err := csv.DecodeTrials(*trials)
