@@ -787,6 +787,10 @@ func (p *Page) onField(key string) goapp.EventHandler {
 		}
 		p.form.set(key, v)
 		p.form.touch(key)
+		if strings.HasSuffix(key, ".type") {
+			// a switched type marks only what is typed from now on
+			p.form.showAll = false
+		}
 		p.validate()
 	}
 }
@@ -794,6 +798,7 @@ func (p *Page) onField(key string) goapp.EventHandler {
 func (p *Page) onAddAnalysis(t string) goapp.EventHandler {
 	return func(ctx goapp.Context, e goapp.Event) {
 		p.form.AddAnalysis(t)
+		p.form.showAll = false // the new analysis is marked only as it is typed in
 		p.expanded = p.form.Analyses - 1
 		p.validate()
 	}
