@@ -1423,6 +1423,9 @@ func TestBrowser(t *testing.T) {
 			t.Error("a cross-frequency map offers covariates")
 		}
 		b.click(t, "edit-analysis-0") // the first analysis open again, for the link test
+		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`!!document.getElementById("f-analyses-0-permutations")`, chromedp.WithPollingTimeout(5*time.Second))); err != nil {
+			t.Fatalf("analysis 1 did not open again: %v", err)
+		}
 	})
 
 	t.Run("link", func(t *testing.T) {
