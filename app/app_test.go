@@ -436,17 +436,62 @@ func TestFragmentFromZlib(t *testing.T) {
 // TestRowsHTML: the cells are escaped, so a channel or note holding markup
 // shows as text and cannot add elements to the page.
 func TestRowsHTML(t *testing.T) {
-	got := RowsHTML([][]string{{"a1", "C4", "<img src=x onerror=alert(1)>"}, {"b&c", `"q"`, ""}}, []int{0, 1, 2})
+	got := RowsHTML([][]string{{"a1", "C4", "<img src=x onerror=alert(1)>"}, {"b&c", `"q"`, ""}}, Rows{Cols: []int{0, 1, 2}})
 	want := `<tr><td>a1</td><td>C4</td><td>&lt;img src=x onerror=alert(1)&gt;</td></tr>` +
 		`<tr><td>b&amp;c</td><td>&#34;q&#34;</td><td></td></tr>`
 	if got != want {
 		t.Fatalf("RowsHTML:\n%s\nwant\n%s", got, want)
 	}
-	if RowsHTML(nil, []int{0}) != "" {
+	if RowsHTML(nil, Rows{Cols: []int{0}}) != "" {
 		t.Error("no rows should give no text")
 	}
-	if got := RowsHTML([][]string{{"a", "b", "c"}}, []int{2, 0}); got != "<tr><td>c</td><td>a</td></tr>" {
+	if got := RowsHTML([][]string{{"a", "b", "c"}}, Rows{Cols: []int{2, 0}}); got != "<tr><td>c</td><td>a</td></tr>" {
 		t.Errorf("columns 2 and 0: %s", got)
+	}
+	// grouped, formatted, significant rows marked, full values in titles
+	h := []string{"analysis", "r", "p", "q"}
+	rows := [][]string{{"a1", "0.123456789", "0.00001234", "0.0004"}, {"a1", "-0.5", "0.2", "0.3"}, {"a2", "0.25", "0.01", ""}}
+	got = RowsHTML(rows, Rows{Header: h, Cols: []int{0, 1, 2, 3}, Group: true, Heads: map[string]string{"a1": "Does it?"}, Notes: map[string]string{"a1": "p: t"}})
+	for _, w := range []string{
+		`<tr class="group"><th scope="colgroup" colspan="4"><span class="gname">a1</span> Does it?<small>p: t</small></th></tr>`,
+		`<tr class="sig"><td>a1</td><td title="0.123456789">0.123</td><td title="0.00001234">&lt; 0.0001</td><td title="0.0004">0.000400 <abbr class="mark" title="significant">✱</abbr></td></tr>`,
+		`<tr><td>a1</td><td title="-0.5">-0.500</td>`,
+		`<span class="gname">a2</span>`,
+		`<td title="0.01">0.0100 <abbr class="mark"`,
+	} {
+		if !strings.Contains(got, w) {
+			t.Errorf("RowsHTML lacks %s in\n%s", w, got)
+		}
+	}
+	if strings.Count(got, `class="group"`) != 2 {
+		t.Errorf("want 2 headings: %s", got)
+	}
+}
+
+// TestCell: the shown precision of each kind of column; no shown number
+// has more than 5 significant digits.
+func TestCell(t *testing.T) {
+	cases := []struct{ col, in, want string }{
+		{"r", "0.98765432", "0.988"},
+		{"r", "-0.0001", "0.000"},
+		{"r", "1", "1.000"},
+		{"p", "0.000049", "< 0.0001"},
+		{"p", "0.0001", "0.000100"},
+		{"p", "0.0123456", "0.0123"},
+		{"q", "0.99999", "1.00"},
+		{"p_perm", "0.000999", "0.000999"},
+		{"n", "180", "180"},
+		{"seed_fmin", "15.234567", "15.23"},
+		{"seed_tmin", "-0.498", "-0.498"},
+		{"mass", "123.456789", "123.5"},
+		{"note", "1.23456789 s", "1.23456789 s"},
+		{"p_method", "t", "t"},
+		{"r", "", ""},
+	}
+	for _, c := range cases {
+		if got := Cell(c.col, c.in); got != c.want {
+			t.Errorf("Cell(%s, %s) = %q, want %q", c.col, c.in, got, c.want)
+		}
 	}
 }
 

@@ -45,6 +45,8 @@ func plotGeometry() (geometry, [4]float64, bool)         { return geometry{}, [4
 func showSelection(x0, y0, x1, y1 float64, visible bool) {}
 func attachDrag(func(x0, y0, x1, y1 float64))            {}
 
-func markTime(string) {}
+func markTime(string)   {}
+func focusField(string) {}
 
 func afterTask(d time.Duration, fn func()) { time.AfterFunc(d, fn) }
+func bufferText(buffer) string             { return "" }

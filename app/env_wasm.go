@@ -279,14 +279,15 @@ func showSelection(x0, y0, x1, y1 float64, visible bool) {
 	st.Set("height", px(abs(y1-y0)))
 }
 
-// bodyRows is the number of rows in the table body with the given id, or
+// bodyRows is the number of data rows in the table body with the given id, or
 // −1 when there is none.
 func bodyRows(id string) int {
 	el := js.Global().Get("document").Call("getElementById", id)
 	if !el.Truthy() {
 		return -1
 	}
-	return el.Get("rows").Length()
+	// result rows only, not the analyses' heading rows
+	return el.Call("querySelectorAll", "tr:not(.group)").Length()
 }
 
 // setBodyHTML replaces the contents of the element with the given id.
@@ -367,4 +368,24 @@ func afterTask(d time.Duration, fn func()) {
 		return nil
 	})
 	js.Global().Call("setTimeout", f, d.Milliseconds())
+}
+
+// focusField scrolls the element with the given id into view and focuses it.
+func focusField(id string) {
+	el := js.Global().Get("document").Call("getElementById", id)
+	if !el.Truthy() {
+		return
+	}
+	opts := js.Global().Get("Object").New()
+	opts.Set("block", "center")
+	el.Call("scrollIntoView", opts)
+	el.Call("focus")
+}
+
+// bufferText decodes an ArrayBuffer of UTF-8 text.
+func bufferText(buf js.Value) string {
+	if !buf.Truthy() {
+		return ""
+	}
+	return js.Global().Get("TextDecoder").New().Call("decode", js.Global().Get("Uint8Array").New(buf)).String()
 }

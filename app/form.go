@@ -37,22 +37,25 @@ type field struct {
 	Types   []string // analysis types the field applies to; nil = all
 	Hint    string
 	Wide    bool
+	// Default is what an empty input means (shown as its placeholder, or
+	// named by a choice's "(default)" option); "" when empty means absent.
+	Default string
 }
 
 // Top-level fields (epochs, spectral).
 var topFields = []field{
 	{Key: "epochs.enabled", Kind: kBool, Label: "Cut continuous data into epochs"},
-	{Key: "epochs.event", Kind: kStr, Label: "Epoch event type"},
+	{Key: "epochs.event", Kind: kStr, Label: "Epoch event type", Hint: "an event type of the recording"},
 	{Key: "epochs.start", Kind: kNum, Label: "Epoch start (s)"},
 	{Key: "epochs.end", Kind: kNum, Label: "Epoch end (s)"},
-	{Key: "spectral.low", Kind: kNum, Label: "Lowest frequency (Hz)"},
-	{Key: "spectral.high", Kind: kNum, Label: "Highest frequency (Hz)"},
-	{Key: "spectral.steps", Kind: kNum, Label: "Frequencies"},
-	{Key: "spectral.spacing", Kind: kChoice, Label: "Spacing", Choices: []string{"log", "linear"}},
-	{Key: "spectral.cycles.0", Kind: kNum, Label: "Cycles at lowest"},
-	{Key: "spectral.cycles.1", Kind: kNum, Label: "Cycles at highest"},
+	{Key: "spectral.low", Kind: kNum, Label: "Lowest frequency (Hz)", Default: "2"},
+	{Key: "spectral.high", Kind: kNum, Label: "Highest frequency (Hz)", Default: "40"},
+	{Key: "spectral.steps", Kind: kNum, Label: "Frequencies", Default: "30"},
+	{Key: "spectral.spacing", Kind: kChoice, Label: "Spacing", Choices: []string{"log", "linear"}, Default: "log"},
+	{Key: "spectral.cycles.0", Kind: kNum, Label: "Cycles at lowest", Default: "3"},
+	{Key: "spectral.cycles.1", Kind: kNum, Label: "Cycles at highest", Default: "10"},
 	{Key: "figures.draw", Kind: kBool, Label: "Draw figures (off is faster for large tables)"},
-	{Key: "figures.powerScale", Kind: kChoice, Label: "Power colour scale", Choices: []string{"log", "linear"}},
+	{Key: "figures.powerScale", Kind: kChoice, Label: "Power colour scale", Choices: []string{"log", "linear"}, Default: "log"},
 }
 
 // Where topFields' groups start: epochs, spectral settings, figures.
@@ -83,8 +86,8 @@ var analysisFields = []field{
 	{Key: "target.time.1", Kind: kNum, Label: "Target to (s)", Types: windowTypes},
 	{Key: "target.freq.0", Kind: kNum, Label: "Target band low (Hz)", Types: windowTypes},
 	{Key: "target.freq.1", Kind: kNum, Label: "Target band high (Hz)", Types: windowTypes},
-	{Key: "clusterFormingP", Kind: kNum, Label: "Cluster-forming p", Types: []string{recipe.TypeTFMap}},
-	{Key: "timeStep", Kind: kNum, Label: "Map time step (s)", Types: []string{recipe.TypeTFMap}},
+	{Key: "clusterFormingP", Kind: kNum, Label: "Cluster-forming p", Types: []string{recipe.TypeTFMap}, Default: "0.05"},
+	{Key: "timeStep", Kind: kNum, Label: "Map time step (s)", Types: []string{recipe.TypeTFMap}, Default: "0.02"},
 
 	{Key: "channels", Kind: kNames, Label: "Channels", Types: envelopeTypes, Hint: "names separated by commas, or * for all", Wide: true},
 	{Key: "freq.0", Kind: kNum, Label: "Envelope band low (Hz)", Types: envelopeTypes},
@@ -93,20 +96,20 @@ var analysisFields = []field{
 	{Key: "targetFreq.1", Kind: kNum, Label: "Second band high (Hz)", Types: envelopeTypes},
 	{Key: "leakageCorrection", Kind: kOrth, Label: "Leakage correction", Choices: []string{"", "pairwise", "symmetric"}, Types: envelopeTypes},
 	{Key: "segment", Kind: kNum, Label: "Segment length (s)", Types: envelopeTypes, Hint: "optional: r over time"},
-	{Key: "envelope", Kind: kChoice, Label: "Envelope", Choices: []string{"amplitude", "log-power"}, Types: envelopeTypes, Hint: "amplitude, or log power"},
-	{Key: "envelopeRate", Kind: kNum, Label: "Envelope rate (Hz)", Types: envelopeTypes},
-	{Key: "trials", Kind: kChoice, Label: "Trials", Choices: []string{"average", "concatenate"}, Types: envelopeTypes},
-	{Key: "surrogates", Kind: kNum, Label: "Surrogates", Types: envelopeTypes},
-	{Key: "over", Kind: kChoice, Label: "Envelopes over", Choices: []string{"recording", "epochs"}, Types: envelopeTypes, Hint: "the whole recording, or the epochs"},
+	{Key: "envelope", Kind: kChoice, Label: "Envelope", Choices: []string{"amplitude", "log-power"}, Types: envelopeTypes, Hint: "amplitude, or log power", Default: "amplitude"},
+	{Key: "envelopeRate", Kind: kNum, Label: "Envelope rate (Hz)", Types: envelopeTypes, Hint: "optional: bin the envelopes"},
+	{Key: "trials", Kind: kChoice, Label: "Trials", Choices: []string{"average", "concatenate"}, Types: envelopeTypes, Default: "average"},
+	{Key: "surrogates", Kind: kNum, Label: "Surrogates", Types: envelopeTypes, Default: "none"},
+	{Key: "over", Kind: kChoice, Label: "Envelopes over", Choices: []string{"recording", "epochs"}, Types: envelopeTypes, Hint: "the whole recording, or the epochs", Default: "recording when continuous"},
 
-	{Key: "permutations", Kind: kNum, Label: "Permutations"},
-	{Key: "randomSeed", Kind: kNum, Label: "Random seed"},
-	{Key: "correction", Kind: kChoice, Label: "Multiple-test correction", Choices: []string{"none", "fdr", "bonferroni", "cluster"}},
-	{Key: "level", Kind: kNum, Label: "Confidence level"},
-	{Key: "covariates", Kind: kList, Label: "Covariates", Hint: "events columns, separated by commas", Wide: true},
-	{Key: "conditions.column", Kind: kStr, Label: "Condition column"},
-	{Key: "conditions.compare.0", Kind: kStr, Label: "Compare level"},
-	{Key: "conditions.compare.1", Kind: kStr, Label: "with level"},
+	{Key: "permutations", Kind: kNum, Label: "Permutations", Types: windowTypes, Default: "none"},
+	{Key: "randomSeed", Kind: kNum, Label: "Random seed", Default: "1"},
+	{Key: "correction", Kind: kChoice, Label: "Multiple-test correction", Choices: []string{"none", "fdr", "bonferroni", "cluster"}, Default: "none"},
+	{Key: "level", Kind: kNum, Label: "Confidence level", Default: "0.95"},
+	{Key: "covariates", Kind: kList, Label: "Covariates", Types: []string{recipe.TypeTrialWindow}, Hint: "per-trial columns, separated by commas", Wide: true},
+	{Key: "conditions.column", Kind: kStr, Label: "Condition column", Types: []string{recipe.TypeTrialWindow}, Default: "trial_type"},
+	{Key: "conditions.compare.0", Kind: kStr, Label: "Compare level", Types: []string{recipe.TypeTrialWindow}},
+	{Key: "conditions.compare.1", Kind: kStr, Label: "with level", Types: []string{recipe.TypeTrialWindow}},
 }
 
 // Form is the recipe as the page's inputs hold it: text by input key.
@@ -117,6 +120,19 @@ type Form struct {
 	Analyses int
 
 	rev int // counts changes, so the page knows when to redraw the form
+
+	// which inputs the user has typed in: the others are not marked
+	// invalid until Run (or a loaded recipe) sets showAll
+	touched map[string]bool
+	showAll bool
+}
+
+// touch records that the user has typed in input k.
+func (f *Form) touch(k string) {
+	if f.touched == nil {
+		f.touched = map[string]bool{}
+	}
+	f.touched[k] = true
 }
 
 // NewForm returns an empty form with one trial-window analysis.

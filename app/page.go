@@ -29,10 +29,12 @@ type Page struct {
 	ctx  goapp.Context
 	pool *pool
 
-	// the recording
-	data    *fileRef
-	events  *fileRef
-	extras  []fileRef
+	// the recording: the files given together, what each was taken as
+	// (all.Roles, as the worker recognised them or the user set them), and
+	// the source made of them
+	files   []fileRef
+	roles   []string
+	src     wire.Source
 	demo    bool
 	summary *dataset.Summary
 	loadMsg string
@@ -48,26 +50,37 @@ type Page struct {
 	expanded int // the analysis open for editing
 
 	// running
-	seq       int
-	mode      string
-	running   bool
-	done      []int
-	total     int
-	unitBufs  []buffer
-	unitsIn   int
-	started   float64
-	status    string
-	runErr    string
-	stateAttr string
+	pendingRun bool // a run was asked for before the recording was ready
+	phase      string
+	phaseDone  int // a counted phase other than computing (drawing n of m)
+	phaseTotal int
+	timings    []wire.Timing
+	runErrKey  string // the field the run's error is about ("" if none)
+	seq        int
+	mode       string
+	running    bool
+	done       []int
+	total      int
+	unitBufs   []buffer
+	unitsIn    int
+	started    float64
+	status     string
+	runErr     string
+	stateAttr  string
 
 	// results
-	table    Table
-	sortCol  int
-	sortDesc bool
-	figures  []wire.Figure
-	warnings []string
-	urls     map[string]string // download name → blob URL
-	identity string
+	table     Table
+	sortCol   int
+	sortDesc  bool
+	figures   []wire.Figure
+	warnings  []string
+	urls      map[string]string // download name → blob URL
+	identity  string
+	bigFig    int               // the figure shown large, −1 for none
+	bigSVG    string            // its SVG, drawn inline (cell values on hover)
+	showTruth bool              // the demo's planted effects are shown
+	groups    map[string]string // analysis id → its question in words
+	notes     map[string]string // analysis id → which p its rows report
 
 	// check plot
 	powerSeq   int
@@ -103,7 +116,10 @@ type Page struct {
 const (
 	stages      = 6
 	rowsPerTick = 100
-	revealDelay = 4 * time.Millisecond
+	// cellsPerTick bounds the cells written into the table in one task
+	cellsPerTick = 1200
+	figsPerTick  = 8
+	revealDelay  = 4 * time.Millisecond
 )
 
 // later runs fn on the page after the browser has had its turn: from a
@@ -140,16 +156,28 @@ func (p *Page) reveal(ctx goapp.Context) {
 			setBodyHTML(resultsBody, "")
 			p.shownRows = 0
 		}
-		end := min(len(p.sorted), p.shownRows+rowsPerTick)
-		appendBodyHTML(resultsBody, RowsHTML(p.sorted[p.shownRows:end], p.visible()))
+		// a bounded number of cells per task, so a table with every
+		// column shown is written in shorter steps
+		per := max(10, min(rowsPerTick, cellsPerTick/max(1, len(p.visible()))))
+		end := min(len(p.sorted), p.shownRows+per)
+		o := Rows{Header: p.table.Header, Cols: p.visible(), Group: p.sortCol < 0, Heads: p.groups, Notes: p.notes}
+		if p.shownRows > 0 {
+			if ac := p.table.Col("analysis"); ac >= 0 && ac < len(p.sorted[p.shownRows-1]) {
+				o.Prev = p.sorted[p.shownRows-1][ac]
+			}
+		}
+		appendBodyHTML(resultsBody, RowsHTML(p.sorted[p.shownRows:end], o))
 		p.shownRows = end
 	case p.shownFigs < len(p.figures):
-		if p.shownFigs < len(p.figBufs) {
-			p.urls[p.figures[p.shownFigs].Name+".svg"] = bufferURL(p.figBufs[p.shownFigs], "image/svg+xml")
+		// a few figures per task: each addition redraws the list
+		for end := min(len(p.figures), p.shownFigs+figsPerTick); p.shownFigs < end; p.shownFigs++ {
+			if p.shownFigs < len(p.figBufs) {
+				p.urls[p.figures[p.shownFigs].Name+".svg"] = bufferURL(p.figBufs[p.shownFigs], "image/svg+xml")
+			}
 		}
-		p.shownFigs++
 	default:
 		p.drawing = false
+		p.phase = ""
 		p.stateAttr = "done"
 		markTime("amplink-done")
 		return
@@ -191,11 +219,21 @@ func (p *Page) OnMount(ctx goapp.Context) {
 // restoreLink fills the form from a shared link in the URL fragment.
 func (p *Page) restoreLink() {
 	if frag := fragment(); strings.HasPrefix(strings.TrimPrefix(frag, "#"), FragmentKey) {
+		// "&run" asks for a run once a recording is ready
+		frag, run := strings.CutSuffix(frag, RunSuffix)
+		if run {
+			if p.ready() {
+				defer p.onRun(p.ctx, goapp.Event{})
+			} else {
+				p.pendingRun = true
+			}
+		}
 		b, err := DecodeFragment(frag)
 		if err == nil {
 			var f *Form
 			if f, err = FormFromJSON(b); err == nil {
 				p.form = f
+				p.form.showAll = true
 				p.restored = "Settings restored from the link."
 				p.validate()
 			}
@@ -231,7 +269,7 @@ func (p *Page) handleReply(k int, rep wire.Reply, bufs []buffer) {
 		p.powerBusy = false
 		switch {
 		case rep.Op == wire.OpError:
-			p.powerErr = rep.Error
+			p.powerErr = Human(rep.Error)
 		case rep.Figure != nil:
 			p.powerSVG, p.powerErr = rep.Figure.SVG, ""
 			p.ctx.Defer(func(goapp.Context) { attachDrag(p.onDragged) })
@@ -245,35 +283,19 @@ func (p *Page) handleReply(k int, rep wire.Reply, bufs []buffer) {
 	case wire.OpError:
 		p.fail(rep.Error)
 	case wire.OpSummary:
-		p.loading = false
-		var s dataset.Summary
-		if err := json.Unmarshal(rep.Summary, &s); err != nil {
-			p.loadErr = err.Error()
-			return
+		p.takeSummary(rep)
+	case wire.OpPhase:
+		p.phase = rep.Phase
+		p.phaseDone, p.phaseTotal = 0, 0
+		if rep.Phase != wire.PhaseComputing {
+			p.phaseDone, p.phaseTotal = rep.Done, rep.Total
 		}
-		p.summary = &s
-		p.loadErr = ""
-		if len(s.Channels) > 0 && p.powerChan == "" {
-			p.powerChan = s.Channels[0]
+		if rep.Phase == wire.PhaseComputing && rep.Total > 0 {
+			p.total = rep.Total
 		}
-		// the form follows in its own task: drawing a long recipe and the
-		// summary together would make one long one
-		demoRecipe := rep.Recipe
-		seq := p.seq
-		p.later(func(ctx goapp.Context) {
-			if seq != p.seq {
-				return
-			}
-			if len(demoRecipe) > 0 {
-				if f, err := FormFromJSON(demoRecipe); err == nil {
-					p.form = f
-					p.expanded = 0
-				}
-			}
-			p.suggestEpochs()
-			p.validate()
-			p.stateAttr = "loaded"
-		})
+		if rep.Phase == wire.PhaseCombining {
+			markTime("amplink-combining")
+		}
 	case wire.OpProgress:
 		if k < len(p.done) {
 			p.done[k] = rep.Done
@@ -292,7 +314,7 @@ func (p *Page) handleReply(k int, rep wire.Reply, bufs []buffer) {
 				names[i] = fmt.Sprintf("units-%d", i)
 			}
 			p.pool.send(0, wire.Request{Op: wire.OpFinish, Seq: p.seq}, names, p.unitBufs)
-			p.status = "Combining results…"
+			p.phase = wire.PhaseCombining
 		}
 	case wire.OpResults:
 		markTime("amplink-results")
@@ -302,28 +324,104 @@ func (p *Page) handleReply(k int, rep wire.Reply, bufs []buffer) {
 }
 
 func (p *Page) fail(msg string) {
-	p.running, p.loading = false, false
+	p.running, p.loading, p.pendingRun = false, false, false
+	p.phase = ""
 	p.stateAttr = "error"
 	if k := p.form.KeyFor(msg); k != "" {
 		p.fieldKey, p.fieldErr = k, msg
-		p.runErr = "The recipe does not fit this recording: see the marked field."
+		p.form.touch(k)
+		p.runErrKey = k
+		p.runErr = "The recipe does not fit this recording: " + Human(msg)
 		return
 	}
 	if p.summary == nil && !p.demo {
-		p.loadErr = msg
+		p.loadErr = Human(msg)
 		return
 	}
-	p.runErr = msg
+	p.runErrKey = ""
+	p.runErr = Human(msg)
+}
+
+// takeSummary takes what the worker found in the files: the summary of
+// the recording, what each file was taken as, and a recipe among them.
+func (p *Page) takeSummary(rep wire.Reply) {
+	p.loading = false
+	if rep.Roles != nil {
+		p.roles = rep.Roles
+	}
+	if rep.Source != nil {
+		p.src = *rep.Source
+	}
+	recipeText := rep.RecipeText
+	if len(rep.Recipe) > 0 {
+		recipeText = string(rep.Recipe)
+	}
+	if len(rep.Summary) > 0 {
+		var s dataset.Summary
+		if err := json.Unmarshal(rep.Summary, &s); err != nil {
+			p.loadErr = err.Error()
+			return
+		}
+		p.summary = &s
+		p.loadErr = ""
+		// messages about what was missing are gone with it
+		if p.runErrKey == "" {
+			p.runErr = ""
+		}
+		if len(s.Channels) > 0 && p.powerChan == "" {
+			p.powerChan = s.Channels[0]
+		}
+		p.showTruth = false
+	}
+	// the form follows in its own task: drawing a long recipe and the
+	// summary together would make one long one
+	seq, fromFile := p.seq, len(rep.Recipe) == 0 && recipeText != ""
+	p.later(func(ctx goapp.Context) {
+		if seq != p.seq {
+			return
+		}
+		if recipeText != "" {
+			f, err := FormFromJSON([]byte(recipeText))
+			switch {
+			case err != nil:
+				p.formErr = "Recipe file: " + err.Error()
+			default:
+				p.form = f
+				p.expanded = 0
+				p.form.showAll = true
+				if fromFile {
+					p.restored = "Settings taken from the recipe file."
+				}
+			}
+		}
+		if p.summary == nil {
+			p.validate()
+			return
+		}
+		// the demo's explanation in a task of its own, after the form
+		if p.demo {
+			p.later(func(goapp.Context) { p.showTruth = true })
+		}
+		p.suggestEpochs()
+		p.validate()
+		p.stateAttr = "loaded"
+		if p.pendingRun {
+			p.pendingRun = false
+			p.onRun(ctx, goapp.Event{})
+		}
+	})
 }
 
 func (p *Page) finishRun(rep wire.Reply, bufs []buffer) {
 	p.running = false
+	p.phase = ""
 	elapsed := nowMillis() - p.started
 	t, err := ParseTable(rep.CSV)
 	if err != nil {
 		p.fail(err.Error())
 		return
 	}
+	p.timings = rep.Timings
 	if p.mode == modeIdentity {
 		p.identity = identityText(t)
 		p.status = fmt.Sprintf("Identity check done in %.1f s.", elapsed/1000)
@@ -331,16 +429,20 @@ func (p *Page) finishRun(rep wire.Reply, bufs []buffer) {
 		return
 	}
 	p.table, p.sorted, p.cols = t, nil, nil
+	p.notes = t.PNotes()
 	p.sortCol, p.sortDesc = -1, false
 	p.figures = rep.Figures
 	p.scalp = scalpState{} // scalp.go
+	p.bigFig = -1
+	p.total = max(p.total, 1)
 	p.warnings = rep.Warnings
 	p.status = fmt.Sprintf("Done: %d results in %.1f s.", len(t.Rows), elapsed/1000)
 	p.shownRows, p.shownFigs = 0, 0
 	p.resultsRev++
 	p.stateAttr = "drawing"
+	p.phase = phaseShowing
 	// the downloads, then the rows and figures, each in later short tasks
-	csv, recipeJSON := rep.CSV, string(p.form.JSON())
+	csv, recipeJSON := rep.CSV, rep.ResolvedRecipe
 	p.later(func(ctx goapp.Context) {
 		for _, u := range p.urls {
 			revokeURL(u)
@@ -350,15 +452,23 @@ func (p *Page) finishRun(rep wire.Reply, bufs []buffer) {
 			"recipe.json": blobURL(recipeJSON, "application/json"),
 		}
 		p.figBufs = nil
-		if len(bufs) == 1+len(rep.Figures) {
+		if len(bufs) == 2+len(rep.Figures) {
 			p.urls["results.json"] = bufferURL(bufs[0], "application/json")
-			p.figBufs = bufs[1:]
+			p.urls[archiveName] = bufferURL(bufs[1], "application/zip")
+			p.figBufs = bufs[2:]
 		}
 		p.resultsRev++
 		p.drawing = true
 		p.later(p.reveal)
 	})
 }
+
+// archiveName is the download of every output in one file.
+const archiveName = "amplink-results.zip"
+
+// phaseShowing is the page's own last phase: rows and figures drawn into
+// the page.
+const phaseShowing = "showing"
 
 // identityText summarises the identity check: every r should be 1.
 func identityText(t Table) string {
@@ -401,15 +511,31 @@ func (p *Page) suggestEpochs() {
 
 // validate parses the form and records the message for the field it names.
 func (p *Page) validate() bool {
-	_, key, err := p.form.Validate()
 	p.fieldKey, p.fieldErr, p.formErr = "", "", ""
+	// an unknown channel is caught while typing, before the rest of the
+	// analysis is complete
+	var key string
+	err := p.checkChannels()
+	if err != nil {
+		key = p.form.KeyFor(err.Error())
+	} else {
+		_, key, err = p.form.Validate()
+	}
 	if err == nil {
+		if p.runErrKey != "" {
+			p.runErr, p.runErrKey = "", ""
+		}
 		return true
+	}
+	// a field the user has not typed in yet is not marked (a new analysis,
+	// a switched type) until Run or a loaded recipe asks for every field
+	if key != "" && !p.form.showAll && !p.form.touched[key] {
+		return false
 	}
 	if key != "" {
 		p.fieldKey, p.fieldErr = key, err.Error()
 	} else {
-		p.formErr = err.Error()
+		p.formErr = Human(err.Error())
 	}
 	return false
 }
@@ -419,17 +545,30 @@ func (p *Page) sources() (wire.Source, []fileRef) {
 	if p.demo {
 		return wire.Source{Demo: true}, nil
 	}
-	if p.data == nil {
+	if p.src.Name == "" {
 		return wire.Source{}, nil
 	}
-	src := wire.Source{Name: p.data.Name}
-	files := []fileRef{*p.data}
-	if p.events != nil {
-		src.EventsName = p.events.Name
-		files = append(files, *p.events)
+	return p.src, p.files
+}
+
+// ready reports whether a recording is loaded and can be analysed.
+func (p *Page) ready() bool {
+	return p.summary != nil && !p.loading
+}
+
+// waitReason says why Run cannot be pressed yet ("" when it can).
+func (p *Page) waitReason() string {
+	switch {
+	case p.running:
+		return ""
+	case p.loading && p.demo:
+		return "Waiting for the demo recording to be built…"
+	case p.loading:
+		return "Waiting for the recording to be read…"
+	case p.summary == nil:
+		return "Open a recording or load the demo first (step 1)."
 	}
-	files = append(files, p.extras...)
-	return src, files
+	return ""
 }
 
 // post sends req to worker k with the files themselves: a File is only a
@@ -459,12 +598,13 @@ func (p *Page) resetRecording() {
 	if p.running {
 		p.cancel()
 	}
-	p.data, p.events, p.extras, p.demo = nil, nil, nil, false
+	p.files, p.roles, p.src, p.demo = nil, nil, wire.Source{}, false
 	p.summary, p.loadErr, p.loadMsg = nil, "", ""
 	p.powerSVG, p.powerErr, p.powerChan = "", "", ""
 	p.table, p.sorted, p.cols, p.shownRows = Table{}, nil, nil, 0
 	setBodyHTML(resultsBody, "")
 	p.figures, p.identity = nil, ""
+	p.runErr, p.runErrKey, p.status = "", "", ""
 	p.resultsRev++
 }
 
@@ -481,92 +621,93 @@ func (p *Page) onDrop(ctx goapp.Context, e goapp.Event) {
 	p.takeFiles(filesOf(e.Get("dataTransfer").Get("files")))
 }
 
-// takeFiles sorts what the user gave: a recipe (.json with analyses), an
-// events table, sidecars (channels.tsv, electrodes.tsv, .json such as a
-// coordsystem.json), and the recording.
+// takeFiles hands what the user gave to a worker, which recognises each
+// file by its content (a recording, its events, channels or trials table,
+// a recipe) and describes the recording. A recipe alone only fills the
+// form; with a recording open, it also runs it.
 func (p *Page) takeFiles(fs []fileRef) {
 	if len(fs) == 0 {
 		return
 	}
-	var data, events *fileRef
-	var extras, jsons []fileRef
 	var total int64
-	for i := range fs {
-		f := fs[i]
+	for _, f := range fs {
 		total += f.Size
-		low := strings.ToLower(f.Name)
-		switch {
-		case strings.HasSuffix(low, "events.tsv"):
-			events = &f
-		case strings.HasSuffix(low, ".json"):
-			jsons = append(jsons, f)
-		case strings.HasSuffix(low, "channels.tsv"), strings.HasSuffix(low, "electrodes.tsv"):
-			extras = append(extras, f)
-		default:
-			data = &f
-		}
 	}
 	if total > wire.MaxBytes {
 		p.loadErr = fmt.Sprintf("These files hold %d MiB; the page can hold at most %d MiB per analysis worker. Use the command-line tool for larger recordings.", total>>20, wire.MaxBytes>>20)
 		return
 	}
-	p.ctx.Async(func() {
-		var recipeJSON []byte
-		var readErr error
-		var sidecars []fileRef
-		for _, j := range jsons {
-			if j.Size > 1<<20 {
-				sidecars = append(sidecars, j)
-				continue
-			}
-			text, err := readText(j)
-			if err != nil {
-				readErr = err
-				continue
-			}
-			if strings.Contains(text, `"analyses"`) {
-				recipeJSON = []byte(text)
-			} else {
-				sidecars = append(sidecars, j)
-			}
-		}
-		p.ctx.Dispatch(func(ctx goapp.Context) {
-			if readErr != nil {
-				p.loadErr = readErr.Error()
-			}
-			if recipeJSON != nil {
-				f, err := FormFromJSON(recipeJSON)
+	if len(fs) == 1 && strings.HasSuffix(strings.ToLower(fs[0].Name), ".json") && fs[0].Size < 1<<20 && (p.summary != nil || p.demo) {
+		// a recipe for the recording already open
+		f := fs[0]
+		p.ctx.Async(func() {
+			text, err := readText(f)
+			p.ctx.Dispatch(func(ctx goapp.Context) {
 				if err != nil {
-					p.formErr = "Recipe file: " + err.Error()
-				} else {
-					p.form = f
-					p.restored = "Settings taken from the dropped recipe."
-					p.validate()
+					p.formErr = err.Error()
+					return
 				}
-			}
-			if data != nil {
-				p.resetRecording()
-				p.data, p.events = data, events
-				p.extras = append(extras, sidecars...)
-				p.describe()
-			} else if events != nil && p.data != nil {
-				p.events = events
-				p.describe()
-			}
-			if recipeJSON != nil && (p.data != nil || p.demo) && data == nil {
-				p.startRun(modeMain, p.form.JSON())
-			}
+				if strings.Contains(text, `"analyses"`) {
+					p.takeRecipe(text, true)
+					return
+				}
+				p.describeFiles(append(append([]fileRef(nil), p.files...), f), nil)
+			})
 		})
-	})
+		return
+	}
+	p.resetRecording()
+	p.describeFiles(fs, nil)
 }
 
-func (p *Page) describe() {
-	src, files := p.sources()
+// takeRecipe fills the form from a recipe file, and runs it when asked and
+// a recording is open.
+func (p *Page) takeRecipe(text string, run bool) {
+	f, err := FormFromJSON([]byte(text))
+	if err != nil {
+		p.formErr = "Recipe file: " + err.Error()
+		return
+	}
+	p.form = f
+	p.form.showAll = true
+	p.expanded = 0
+	p.restored = "Settings taken from the recipe file."
+	p.validate()
+	if run {
+		p.onRun(p.ctx, goapp.Event{})
+	}
+}
+
+// describeFiles asks a worker to read the files: with roles nil it
+// recognises each one by its content.
+func (p *Page) describeFiles(fs []fileRef, roles []string) {
+	p.files, p.roles, p.src, p.demo = fs, roles, wire.Source{}, false
+	p.summary = nil
 	p.loading = true
 	p.stateAttr = "reading"
-	p.loadMsg = "Reading " + src.Name + "…"
+	names := make([]string, len(fs))
+	for i, f := range fs {
+		names[i] = f.Name
+	}
+	p.loadMsg = "Reading " + strings.Join(names, ", ") + "…"
 	p.seq++
-	p.post(0, wire.Request{Op: wire.OpDescribe, Seq: p.seq, Source: src}, files)
+	p.post(0, wire.Request{Op: wire.OpDescribe, Seq: p.seq, Roles: roles}, fs)
+}
+
+// onRole changes what file i is taken as, and reads the files again.
+func (p *Page) onRole(i int) goapp.EventHandler {
+	return func(ctx goapp.Context, e goapp.Event) {
+		if i >= len(p.files) || i >= len(p.roles) {
+			return
+		}
+		roles := append([]string(nil), p.roles...)
+		roles[i] = ctx.JSSrc().Get("value").String()
+		files := p.files
+		if p.running {
+			p.cancel()
+		}
+		p.describeFiles(files, roles)
+	}
 }
 
 // ---- check plot ----
@@ -576,7 +717,14 @@ func (p *Page) onPowerChannel(ctx goapp.Context, e goapp.Event) {
 }
 
 func (p *Page) onShowPower(ctx goapp.Context, e goapp.Event) {
-	if p.summary == nil {
+	p.requestPower()
+}
+
+// requestPower asks a worker for the power map of the chosen channel. It
+// needs only the channel and the spectral settings (their defaults when
+// empty), not a complete analysis.
+func (p *Page) requestPower() {
+	if !p.ready() {
 		return
 	}
 	src, files := p.sources()
@@ -623,7 +771,11 @@ func (p *Page) applyWindow(t0, t1, f0, f1 float64) {
 	var which string
 	fmt.Sscanf(strings.ReplaceAll(target, ".", " "), "analyses %d %s", &n, &which)
 	p.dragMsg = fmt.Sprintf("Set the %s window of analysis %d to %s–%s s, %s–%s Hz.", which, n+1, round(t0, 3), round(t1, 3), round(f0, 1), round(f1, 1))
+	p.form.touch(target + ".time.0")
 	p.validate()
+	// the map again, with the windows outlined where they now are (the
+	// dragged rectangle stays drawn meanwhile)
+	p.requestPower()
 }
 
 // ---- the form ----
@@ -638,6 +790,11 @@ func (p *Page) onField(key string) goapp.EventHandler {
 			}
 		}
 		p.form.set(key, v)
+		p.form.touch(key)
+		if strings.HasSuffix(key, ".type") {
+			// a switched type marks only what is typed from now on
+			p.form.showAll = false
+		}
 		p.validate()
 	}
 }
@@ -645,6 +802,7 @@ func (p *Page) onField(key string) goapp.EventHandler {
 func (p *Page) onAddAnalysis(t string) goapp.EventHandler {
 	return func(ctx goapp.Context, e goapp.Event) {
 		p.form.AddAnalysis(t)
+		p.form.showAll = false // the new analysis is marked only as it is typed in
 		p.expanded = p.form.Analyses - 1
 		p.validate()
 	}
@@ -666,8 +824,19 @@ func (p *Page) onCopyLink(ctx goapp.Context, e goapp.Event) {
 // ---- running ----
 
 func (p *Page) onRun(ctx goapp.Context, e goapp.Event) {
+	if !p.ready() {
+		// asked for before the recording is ready: it starts once it is
+		p.pendingRun = p.loading
+		if !p.loading {
+			p.runErr = p.waitReason()
+		}
+		return
+	}
+	p.form.showAll = true
 	if !p.validate() {
-		p.runErr = "Fix the marked field first."
+		p.runErr = "Fix the marked field first: " + Human(p.fieldErr+p.formErr)
+		p.runErrKey = p.fieldKey
+		p.form.rev++
 		return
 	}
 	p.startRun(modeMain, p.form.JSON())
@@ -722,7 +891,11 @@ func (p *Page) startRun(mode string, recipeJSON []byte) {
 	p.seq++
 	p.mode = mode
 	p.running = true
-	p.runErr, p.status = "", "Starting…"
+	p.runErr, p.runErrKey, p.status = "", "", ""
+	p.phase, p.timings = wire.PhaseReading, nil
+	if mode == modeMain {
+		p.groups = Questions(recipeJSON)
+	}
 	n := p.pool.size()
 	p.done = make([]int, n)
 	p.unitBufs = make([]buffer, n)
@@ -747,6 +920,7 @@ func (p *Page) cancel() {
 	p.pool.restart()
 	p.seq++
 	p.running, p.powerBusy = false, false
+	p.phase = ""
 	p.status = "Analysis cancelled."
 	p.stateAttr = "cancelled"
 	if p.mode == modeIdentity {
@@ -808,7 +982,7 @@ func (p *Page) onReload(ctx goapp.Context, e goapp.Event) {
 func (p *Page) sortedDownloads() []string {
 	var names []string
 	for n := range p.urls {
-		if n != "results.csv" && n != "results.json" && n != "recipe.json" {
+		if n != "results.csv" && n != "results.json" && n != "recipe.json" && n != archiveName {
 			names = append(names, n)
 		}
 	}

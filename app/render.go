@@ -31,15 +31,15 @@ func (p *Page) Render() goapp.UI {
 				goapp.Text("Do not use its results for clinical decisions.")),
 			goapp.P().Text("Your data stays on this computer: files are read and analysed inside this browser and nothing is uploaded. Patient data must still be handled under your institution's rules."),
 		),
-		&loadView{P: p, Summary: p.summary, Loading: p.loading, Msg: p.loadMsg, Err: p.loadErr},
+		&loadView{P: p, Summary: p.summary, Loading: p.loading, Msg: p.loadMsg, Err: p.loadErr, Truth: p.showTruth, Files: len(p.roles)},
 		goapp.If(p.stage >= 2, &checkView{P: p, Summary: p.summary, SVG: p.powerSVG, Err: p.powerErr, Busy: p.powerBusy,
 			Channel: p.powerChan, Target: p.dragTarget, Msg: p.dragMsg, FormRev: p.form.rev, Form: p.form}),
 		goapp.If(p.stage >= 3, &defineView{P: p, Form: p.form, Rev: p.form.rev, FieldKey: p.fieldKey, FieldErr: p.fieldErr,
-			FormErr: p.formErr, Restored: p.restored, ShareURL: p.shareURL, Full: p.stage >= 4}),
+			FormErr: p.formErr, Restored: p.restored, ShareURL: p.shareURL, Full: p.stage >= 4, Chans: p.chanCount()}),
 		goapp.If(p.stage >= 5, &runView{P: p, Running: p.running, Done: p.doneUnits(), Total: p.total, Status: p.status,
-			Err: p.runErr, Identity: p.identity}),
+			Err: p.runErr, Identity: p.identity, Wait: p.waitReason(), Phase: p.phase, Pending: p.pendingRun, Rows: p.shownRows}),
 		goapp.If(p.stage >= 6, &resultsView{P: p, Rev: p.resultsRev, Rows: p.shownRows, Figs: p.shownFigs,
-			SortCol: p.sortCol, SortDesc: p.sortDesc, AllCols: p.allCols}),
+			SortCol: p.sortCol, SortDesc: p.sortDesc, AllCols: p.allCols, Big: p.bigFig}),
 	)
 }
 
@@ -55,6 +55,8 @@ type loadView struct {
 	Loading bool
 	Msg     string
 	Err     string
+	Truth   bool
+	Files   int
 }
 
 func (v *loadView) Render() goapp.UI { return v.P.renderLoad() }
@@ -86,6 +88,7 @@ type defineView struct {
 	Restored string
 	ShareURL string
 	Full     bool // with the analyses (a start-up stage of its own)
+	Chans    int  // the recording's channels, offered by channel inputs
 }
 
 func (v *defineView) Render() goapp.UI { return v.P.renderDefine(v.Full) }
@@ -99,6 +102,10 @@ type runView struct {
 	Status   string
 	Err      string
 	Identity string
+	Wait     string // why Run cannot be pressed yet
+	Phase    string
+	Pending  bool
+	Rows     int
 }
 
 func (v *runView) Render() goapp.UI { return v.P.renderRun() }
@@ -112,6 +119,7 @@ type resultsView struct {
 	SortCol  int
 	SortDesc bool
 	AllCols  bool
+	Big      int
 }
 
 func (v *resultsView) Render() goapp.UI { return v.P.renderResults() }
@@ -130,22 +138,79 @@ func step(n int, title string, body ...goapp.UI) goapp.UI {
 var capacityText = fmt.Sprintf("The page holds recordings of up to %d MiB of samples (about 270 million, e.g. 64 channels for 70 minutes at 1 kHz) and files of up to %d MiB. For larger ones, use the command-line tool.", wire.MaxBytes>>20, wire.MaxBytes>>20)
 
 func (p *Page) renderLoad() goapp.UI {
+	first := p.summary == nil && !p.loading
+	cls := "dropzone"
+	if first {
+		cls += " first"
+	}
+	demoCls := "quiet"
+	if first {
+		demoCls = "primary"
+	}
 	return step(1, "Open a recording",
-		goapp.Div().Class("dropzone").OnDragOver(p.onDragOver).OnDrop(p.onDrop).Body(
+		goapp.Div().Class(cls).OnDragOver(p.onDragOver).OnDrop(p.onDrop).Body(
 			goapp.Div().Class("row").Body(
-				goapp.Div().Class("field").Body(
-					goapp.Label().For("file-input").Text("Recording (EDF, BDF, CSV/TSV, float32 epochs, WAV, MP3), with its events.tsv, channels.tsv, electrodes.tsv or a recipe .json; or drop them here"),
+				goapp.Div().Class("field picker").Body(
+					goapp.Label().For("file-input").Text("Your recording (EDF, BDF, CSV/TSV, float32 epochs, WAV, MP3), together with its events, channels, trials or electrodes table and a recipe .json if you have them; or drop them here"),
 					goapp.Input().Type("file").ID("file-input").Multiple(true).OnChange(p.onFiles),
 				),
-				goapp.Button().ID("load-demo").Class("quiet").Text("Load the demo").OnClick(p.onLoadDemo),
+				goapp.Span().Class("or").Text("or"),
+				goapp.Button().ID("load-demo").Class(demoCls).Text("Load the demo").OnClick(p.onLoadDemo),
 			),
-			goapp.P().Class("hint").Text("Dropping a recipe .json fills in every setting; with a recording open, it runs the same analysis on it."),
+			goapp.P().Class("hint").Text("Each file is recognised by its content, whatever its name; the summary says what each was taken as, and you can change it. A recipe .json fills in every setting."),
 			goapp.P().Class("hint").ID("capacity").Text(capacityText),
 		),
-		goapp.If(p.loading, goapp.P().Text(p.loadMsg)),
+		goapp.If(p.loading, goapp.P().ID("load-msg").Class("busy").Text(p.loadMsg)),
 		goapp.If(p.loadErr != "", goapp.P().ID("load-error").Class("error").Aria("live", "assertive").Text(p.loadErr)),
+		p.renderFiles(),
 		p.renderSummary(),
 	)
+}
+
+// roleWords say what each role means in the file list.
+var roleWords = map[string]string{
+	"recording": "the recording",
+	"events":    "events table",
+	"channels":  "channels table",
+	"trials":    "trials table (per-trial values)",
+	"recipe":    "recipe (settings)",
+	"sidecar":   "description beside the recording",
+	"unknown":   "not recognised (not used)",
+}
+
+var roleChoices = []string{"recording", "events", "channels", "trials", "recipe", "sidecar", "unknown"}
+
+// renderFiles lists the files given together and what each was taken as,
+// with a chooser to correct a wrong guess.
+func (p *Page) renderFiles() goapp.UI {
+	if len(p.files) == 0 || len(p.roles) != len(p.files) {
+		return nil
+	}
+	return goapp.Table().ID("file-roles").Class("roles").Body(
+		goapp.Caption().Text("The files, and what each was taken as"),
+		goapp.TBody().Body(
+			goapp.Range(p.files).Slice(func(i int) goapp.UI {
+				id := fmt.Sprintf("role-%d", i)
+				return goapp.Tr().Body(
+					goapp.Th().Scope("row").Body(goapp.Label().For(id).Text(p.files[i].Name)),
+					goapp.Td().Body(goapp.Select().ID(id).DataSet("file", p.files[i].Name).OnChange(p.onRole(i), i).Body(
+						goapp.Range(roleChoices).Slice(func(k int) goapp.UI {
+							return goapp.Option().Value(roleChoices[k]).Selected(roleChoices[k] == p.roles[i]).Text(roleWords[roleChoices[k]])
+						}),
+					)),
+				)
+			}),
+		),
+	)
+}
+
+// demoTruth is what the demo has planted and what a correct analysis
+// finds (core/demo; README, "The demo").
+var demoTruth = []string{
+	"Across trials, C4 beta power before the tone (15–25 Hz, −0.5 to −0.1 s) predicts Pz delta power after it (1.5–3.5 Hz, 0.3 to 0.8 s). beta-to-delta should show r ≈ 0.4 at Pz, the only target significant after FDR correction; Fz delta does not depend on it (r near 0). beta-to-delta-map should outline one significant positive cluster at Pz and none at Fz.",
+	"The partial correlation (after response_time and trial) keeps the link (r ≈ 0.4); hits and misses share it, so the hit − miss difference is not significant.",
+	"Over time, the O1 and O2 alpha envelopes (8–12 Hz) co-vary, and each leaks at zero lag into its neighbour (O1 into P3, O2 into P4). posterior-alpha-plain shows every pair coupled, O1–P3 and O2–P4 most strongly (r ≈ 0.7); the leakage-corrected posterior-alpha drops those two to about 0 and keeps O1–O2.",
+	"A T7 low-beta envelope (14–18 Hz) co-varies with a T8 high-gamma envelope (60–80 Hz): temporal-beta-gamma should give r ≈ 0.6 for T7 → T8 and about 0 for the other three pairs.",
 }
 
 func (p *Page) renderSummary() goapp.UI {
@@ -157,18 +222,27 @@ func (p *Page) renderSummary() goapp.UI {
 	for _, e := range s.Events {
 		events = append(events, fmt.Sprintf("%s × %d", e.Type, e.Count))
 	}
-	length := fmt.Sprintf("%.2f s continuous", s.Duration)
-	if s.Trials > 0 {
-		length = fmt.Sprintf("%d trials, %.3f to %.3f s", s.Trials, s.Epoch[0], s.Epoch[1])
+	var length string
+	switch {
+	case s.Duration > 0 && s.Trials > 0:
+		length = fmt.Sprintf("%.1f s continuous recording, cut into %d epochs of %.3f to %.3f s", s.Duration, s.Trials, s.Epoch[0], s.Epoch[1])
+	case s.Trials > 0:
+		length = fmt.Sprintf("%d trials (already epoched), %.3f to %.3f s", s.Trials, s.Epoch[0], s.Epoch[1])
+	default:
+		length = fmt.Sprintf("%.2f s continuous", s.Duration)
 	}
 	chans := strings.Join(s.Channels, ", ")
 	if len(s.Channels) > 24 {
 		chans = strings.Join(s.Channels[:24], ", ") + fmt.Sprintf(" … (%d in all)", len(s.Channels))
 	}
 	audio := s.Format == "wav" || s.Format == "mp3" || strings.Contains(strings.ToLower(s.Format), "audio")
+	name := s.Name
+	if p.demo {
+		name = "the demo: a simulated 19-channel EEG session with 180 tones (invented data with planted effects)"
+	}
 	return goapp.Div().ID("summary").Body(
 		goapp.Dl().Class("summary").Body(
-			goapp.Dt().Text("File"), goapp.Dd().Text(s.Name),
+			goapp.Dt().Text("Recording"), goapp.Dd().Text(name),
 			goapp.Dt().Text("Format"), goapp.Dd().Text(s.Format),
 			goapp.Dt().Text("Channels"), goapp.Dd().Text(fmt.Sprintf("%d: %s", len(s.Channels), chans)),
 			goapp.Dt().Text("Sample rate"), goapp.Dd().Text(fmt.Sprintf("%g Hz", s.Rate)),
@@ -179,6 +253,11 @@ func (p *Page) renderSummary() goapp.UI {
 		goapp.If(audio, goapp.P().Class("note").Text("Audio file: the recording gain is unknown, so amplitudes and power are in arbitrary units. Correlations are unaffected.")),
 		goapp.If(len(s.Notes) > 0, goapp.Ul().Class("warnings").Body(
 			goapp.Range(s.Notes).Slice(func(i int) goapp.UI { return goapp.Li().Text(s.Notes[i]) }),
+		)),
+		goapp.If(p.demo && p.showTruth, goapp.Div().ID("demo-truth").Class("truth").Body(
+			goapp.H3().Text("What the demo holds, and what a correct analysis finds"),
+			goapp.Ul().Body(goapp.Range(demoTruth).Slice(func(i int) goapp.UI { return goapp.Li().Text(demoTruth[i]) })),
+			goapp.P().Class("hint").Text("The demo's recipe is filled in below; run it and check the table against these."),
 		)),
 	)
 }
@@ -191,18 +270,20 @@ func (p *Page) renderCheck() goapp.UI {
 		chans = p.summary.Channels
 	}
 	targets := p.windowTargets()
+	ready := p.ready()
 	return step(2, "Look at the power",
-		goapp.P().Class("hint").Text("Trial-averaged time-frequency power of one channel, with the spectral settings of step 3. Drag a rectangle on it to set a seed or target window, or type the window in below."),
+		goapp.P().Class("hint").Text("Trial-averaged time-frequency power of one channel, with the frequency settings of step 3 (their defaults when empty). It needs no analysis yet: look at it to find the windows, then drag a rectangle on it to set a seed or target window, or type the window in step 3."),
+		goapp.If(!ready, goapp.P().ID("check-wait").Class("wait").Text("Waits for a recording (step 1).")),
 		goapp.Div().Class("row").Body(
 			goapp.Div().Class("field").Body(
 				goapp.Label().For("power-channel").Text("Channel"),
-				goapp.Select().ID("power-channel").OnChange(p.onPowerChannel).Body(
+				goapp.Select().ID("power-channel").Disabled(!ready).OnChange(p.onPowerChannel).Body(
 					goapp.Range(chans).Slice(func(i int) goapp.UI {
 						return goapp.Option().Value(chans[i]).Selected(chans[i] == p.powerChan).Text(chans[i])
 					}),
 				),
 			),
-			goapp.Button().ID("show-power").Class("quiet").Disabled(p.summary == nil || p.powerBusy).Text("Show power").OnClick(p.onShowPower),
+			goapp.Button().ID("show-power").Class("quiet").Disabled(!ready || p.powerBusy).Text("Show power").OnClick(p.onShowPower),
 			goapp.Div().Class("field").Body(
 				goapp.Label().For("drag-target").Text("A dragged rectangle sets"),
 				goapp.Select().ID("drag-target").OnChange(p.onDragTarget).Body(
@@ -212,16 +293,21 @@ func (p *Page) renderCheck() goapp.UI {
 				),
 			),
 		),
-		goapp.If(p.powerBusy, goapp.P().Text("Computing the power map…")),
-		goapp.If(p.powerErr != "", goapp.P().Class("error").Text(p.powerErr)),
+		goapp.If(p.powerBusy, goapp.P().Class("busy").Text("Computing the power map…")),
+		goapp.If(p.powerErr != "", goapp.P().ID("power-error").Class("error").Text(p.powerErr)),
 		goapp.If(p.powerSVG != "",
-			goapp.Div().ID("tf-box").Class("tfbox").
-				Body(
-					goapp.Raw(svgOnly(p.powerSVG)),
-					goapp.Div().ID("tf-sel").Class("sel hidden"),
+			goapp.Div().Class("tfrow").Body(
+				goapp.Div().ID("tf-box").Class("tfbox").
+					Body(
+						goapp.Raw(svgOnly(p.powerSVG)),
+						goapp.Div().ID("tf-sel").Class("sel hidden"),
+					),
+				goapp.Div().Class("tfside").Body(
+					goapp.If(p.dragMsg != "", goapp.P().ID("drag-msg").Class("okay").Aria("live", "polite").Text(p.dragMsg)),
+					goapp.If(p.dragMsg == "", goapp.P().Class("hint").Text("Drag across the map to set the window chosen above.")),
 				),
+			),
 		),
-		goapp.If(p.dragMsg != "", goapp.P().ID("drag-msg").Class("okay").Text(p.dragMsg)),
 	)
 }
 
@@ -270,6 +356,16 @@ func (p *Page) renderDefine(full bool) goapp.UI {
 			goapp.Input().ID("share-url").Class("wide").ReadOnly(true).Value(p.shareURL),
 		)),
 	)
+	var chans []string
+	if p.summary != nil {
+		chans = append([]string{"*"}, p.summary.Channels...)
+	}
+	body = append(body, goapp.DataList().ID(chanList).Body(
+		goapp.Range(chans).Slice(func(i int) goapp.UI { return goapp.Option().Value(chans[i]) }),
+	))
+	if p.summary == nil {
+		body = append([]goapp.UI{goapp.P().Class("wait").Text("You can fill these in now; channel names are offered once a recording is open (step 1).")}, body...)
+	}
 	return step(3, "Describe the analysis", body...)
 }
 
@@ -326,6 +422,22 @@ func inputID(key string) string {
 	return "f-" + strings.ReplaceAll(key, ".", "-")
 }
 
+// chanList is the id of the datalist of the recording's channels, which
+// channel inputs suggest from.
+const chanList = "channel-list"
+
+// defaultText is what an empty input means, for its placeholder or its
+// "(default)" option.
+func defaultText(fd field, typ string) string {
+	if fd.Key == "method" {
+		if typ == recipe.TypeEnvelope || typ == recipe.TypeComodulogram {
+			return "pearson"
+		}
+		return "spearman"
+	}
+	return fd.Default
+}
+
 func (p *Page) inputs(pre string, fields []field, typ string) []goapp.UI {
 	out := make([]goapp.UI, 0, len(fields))
 	for _, fd := range fields {
@@ -337,19 +449,30 @@ func (p *Page) inputs(pre string, fields []field, typ string) []goapp.UI {
 		if invalid {
 			cls += " invalid"
 		}
+		def := defaultText(fd, typ)
 		var input goapp.UI
 		switch fd.Kind {
 		case kChoice, kOrth:
 			opts := fd.Choices
+			if fd.Key == "correction" && typ != recipe.TypeTFMap {
+				// clusters exist only on time-frequency maps
+				opts = []string{"none", "fdr", "bonferroni"}
+				if val == "cluster" {
+					opts = fd.Choices
+				}
+			}
 			if fd.Kind == kChoice && fd.Key != "type" {
 				opts = append([]string{""}, opts...)
 			}
 			input = goapp.Select().ID(id).OnChange(p.onField(key), key).Aria("invalid", invalid).Body(
 				goapp.Range(opts).Slice(func(i int) goapp.UI {
 					label := opts[i]
-					if label == "" && fd.Kind == kOrth {
+					switch {
+					case label == "" && fd.Kind == kOrth:
 						label = "none"
-					} else if label == "" {
+					case label == "" && def != "":
+						label = "(default: " + def + ")"
+					case label == "":
 						label = "(default)"
 					}
 					return goapp.Option().Value(opts[i]).Selected(opts[i] == val || (val == "" && i == 0)).Text(label)
@@ -365,11 +488,22 @@ func (p *Page) inputs(pre string, fields []field, typ string) []goapp.UI {
 			} else {
 				in = in.Type("text")
 			}
+			if fd.Kind == kNames {
+				in = in.List(chanList).Attr("autocomplete", "off")
+			}
 			if fd.Wide {
 				in = in.Class("wide")
 			}
-			if fd.Hint != "" {
-				in = in.Title(fd.Hint).Placeholder("%s", fd.Hint)
+			hint := fd.Hint
+			if def != "" {
+				hint = "default " + def
+				if fd.Hint != "" {
+					hint = fd.Hint + "; default " + def
+				}
+			}
+			if hint != "" {
+				// wide enough to show the whole placeholder
+				in = in.Title(hint).Placeholder("%s", hint).Size(max(6, len([]rune(hint))+1))
 			}
 			input = in
 		}
@@ -381,11 +515,19 @@ func (p *Page) inputs(pre string, fields []field, typ string) []goapp.UI {
 			out = append(out, goapp.Div().Class(cls).Body(input, goapp.Label().For(id).Text(fd.Label)))
 			continue
 		}
+		var why goapp.UI
+		if invalid {
+			words, path := Words(p.fieldErr)
+			why = goapp.Span().ID("why-"+id).Class("why").Aria("live", "polite").Body(
+				goapp.Text(words),
+				goapp.If(path != "", goapp.Small().Class("path").Text(path)),
+			)
+		}
 		out = append(out, goapp.Div().Class(cls).Body(
 			goapp.Label().For(id).Text(fd.Label),
 			input,
 			note,
-			goapp.If(invalid, goapp.Span().Class("why").Aria("live", "polite").Text(p.fieldErr)),
+			why,
 		))
 	}
 	return out
@@ -393,29 +535,100 @@ func (p *Page) inputs(pre string, fields []field, typ string) []goapp.UI {
 
 // ---- 4: run ----
 
-func (p *Page) renderRun() goapp.UI {
+// chanCount is the number of the recording's channels (0 with none).
+func (p *Page) chanCount() int {
+	if p.summary == nil {
+		return 0
+	}
+	return len(p.summary.Channels)
+}
+
+// progressText says which phase of a run is going on, and whether the bar
+// counts: only computing has a measure (units done of all); the other
+// phases show a moving bar, never a full one.
+func (p *Page) progressText() (label string, counted bool) {
 	done := p.doneUnits()
-	total := max(p.total, 1)
-	label := "idle"
+	switch p.phase {
+	case wire.PhaseReading:
+		return "Reading the recording and planning the work…", false
+	case wire.PhaseComputing:
+		if p.total == 0 {
+			return "Computing…", false
+		}
+		return fmt.Sprintf("Computing: %d of %d units", done, p.total), true
+	case wire.PhaseCombining:
+		return fmt.Sprintf("Combining the results of %d units into rows, maps and figures…", p.total), false
+	case wire.PhaseDrawing:
+		if p.total > 0 && p.phaseTotal > 0 {
+			return fmt.Sprintf("Drawing figures: %d of %d", p.phaseDone, p.phaseTotal), true
+		}
+		return "Drawing figures…", false
+	case wire.PhasePacking:
+		return "Writing the tables and the archive…", false
+	case phaseShowing:
+		return fmt.Sprintf("Showing the results: %d of %d rows", p.shownRows, len(p.table.Rows)), true
+	}
 	if p.running {
-		label = fmt.Sprintf("%d / %d units", done, p.total)
+		return "Starting…", false
+	}
+	return "", false
+}
+
+func (p *Page) renderRun() goapp.UI {
+	wait := p.waitReason()
+	label, counted := p.progressText()
+	busy := p.running || p.phase != ""
+	bar := goapp.Progress().ID("progress")
+	switch {
+	case counted && p.phase == phaseShowing:
+		bar = bar.Max(max(len(p.table.Rows), 1)).Value(p.shownRows)
+	case counted:
+		bar = bar.Max(max(p.total, 1)).Value(p.doneUnits())
+	case busy:
+		// no value: the browser draws a moving bar, never a full one
+	default:
+		bar = bar.Max(1).Value(0)
+	}
+	if label == "" {
+		label = "not running"
 	}
 	return step(4, "Run",
 		goapp.Div().Class("row").Body(
-			goapp.Button().ID("run-analysis").Text("Run the analysis").Disabled(p.running).OnClick(p.onRun),
+			goapp.Button().ID("run-analysis").Class("primary").Text("Run the analysis").Disabled(p.running || wait != "").OnClick(p.onRun),
 			goapp.Button().ID("cancel-analysis").Class("quiet").Text("Cancel").Disabled(!p.running).OnClick(p.onCancel),
-			goapp.Button().ID("identity-check").Class("quiet").Text("Identity check").Disabled(p.running).OnClick(p.onIdentity),
+			goapp.Button().ID("identity-check").Class("quiet").Text("Identity check").Disabled(p.running || wait != "").OnClick(p.onIdentity),
+			goapp.If(wait != "", goapp.Span().ID("run-wait").Class("wait").Text(wait)),
 		),
+		goapp.If(p.pendingRun, goapp.P().ID("run-pending").Class("hint").Text("The run starts as soon as the recording is ready.")),
 		goapp.Div().Class("progressline").Body(
 			goapp.Label().For("progress").Text("Progress"),
-			goapp.Progress().ID("progress").Max(total).Value(done).Aria("valuetext", label),
-			goapp.Span().ID("progress-text").Aria("live", "polite").Text(label),
+			bar.Aria("valuetext", label),
+			goapp.Span().ID("progress-text").DataSet("phase", p.phase).Aria("live", "polite").Text(label),
 		),
 		goapp.If(p.status != "", goapp.P().ID("run-status").Text(p.status)),
-		goapp.If(p.runErr != "", goapp.P().ID("run-error").Class("error").Aria("live", "assertive").Text(p.runErr)),
+		goapp.If(len(p.timings) > 0, goapp.P().ID("run-timings").Class("hint").Text(timingText(p.timings))),
+		goapp.If(p.runErr != "", goapp.P().ID("run-error").Class("error").Aria("live", "assertive").Body(
+			goapp.Text(p.runErr+" "),
+			goapp.If(p.runErrKey != "", goapp.A().ID("run-error-field").Href("#"+inputID(p.runErrKey)).Text("Go to the field").OnClick(p.onGoToField)),
+		)),
 		goapp.P().Class("hint").Text("The identity check runs the first trial-window analysis with the target window set equal to the seed window: r must come out as exactly 1."),
 		goapp.If(p.identity != "", goapp.P().ID("identity-result").Text(p.identity)),
 	)
+}
+
+// timingText says where a worker's combining time went.
+func timingText(ts []wire.Timing) string {
+	var parts []string
+	for _, t := range ts {
+		parts = append(parts, fmt.Sprintf("%s %.2f s", t.Step, t.MS/1000))
+	}
+	return "In the worker: " + strings.Join(parts, "; ") + "."
+}
+
+// onGoToField scrolls the field a message is about into view and focuses it.
+func (p *Page) onGoToField(ctx goapp.Context, e goapp.Event) {
+	e.PreventDefault()
+	focusField(inputID(p.runErrKey))
 }
 
 // ---- 5: results ----
@@ -428,12 +641,22 @@ func (p *Page) renderResults() goapp.UI {
 		figs = figs[:p.shownFigs]
 	}
 	downloads := p.sortedDownloads()
+	var big *wire.Figure
+	if p.bigFig >= 0 && p.bigFig < len(figs) {
+		big = &figs[p.bigFig]
+	}
 	return step(5, "Results",
 		goapp.If(len(t.Header) == 0, goapp.P().Class("hint").Text("Results appear here after a run.")),
+		goapp.If(len(t.Header) > 0 && p.urls[archiveName] != "", goapp.Div().Class("row").Body(
+			goapp.A().ID("download-all").Class("button primary").Href(p.urls[archiveName]).Download(archiveName).
+				Text("Download everything (.zip)"),
+			goapp.Span().Class("hint").Text("results.csv, results.json, recipe.json, figures/ and maps/, laid out as amplink run --out writes them; amplink merge takes its results.csv."),
+		)),
 		goapp.If(len(t.Header) > 0, goapp.Div().Class("field check").Body(
 			goapp.Input().Type("checkbox").ID("all-columns").Checked(p.allCols).OnChange(p.onAllColumns),
-			goapp.Label().For("all-columns").Text(fmt.Sprintf("Show every column (%d; the main %d are shown, and results.csv has them all)", len(t.Header), len(cols))),
+			goapp.Label().For("all-columns").Text(fmt.Sprintf("Show every column (%d; the %d that hold values are shown, and results.csv has them all)", len(t.Header), len(cols))),
 		)),
+		goapp.If(len(t.Header) > 0, goapp.P().Class("hint").Text("r to 3 decimals, p and q to 3 significant digits (hover a cell for the full value). ✱ and bold mark a row whose q (or, without a correction, its p) lies below the level the recipe used.")),
 		goapp.Div().Class("tablewrap").Body(
 			goapp.Table().ID("results").Class("results").Body(
 				goapp.THead().Body(goapp.Tr().Body(
@@ -459,29 +682,61 @@ func (p *Page) renderResults() goapp.UI {
 			),
 		),
 		goapp.If(len(p.warnings) > 0, goapp.Ul().Class("warnings").Body(
-			goapp.Range(p.warnings).Slice(func(i int) goapp.UI { return goapp.Li().Text(p.warnings[i]) }),
+			goapp.Range(p.warnings).Slice(func(i int) goapp.UI { return goapp.Li().Text(Human(p.warnings[i])) }),
 		)),
-		goapp.If(len(figs) > 0, goapp.P().Class("hint").Text("Figures: open one to draw it.")),
-		goapp.If(len(downloads) > 0 && len(t.Header) > 0, goapp.Div().Class("downloads").Body(
+		p.renderBig(big),
+		goapp.If(len(figs) > 0, goapp.P().Class("hint").Text(fmt.Sprintf("%d figures: select one to see it at full width, where pointing at a cell shows its value. In envelope figures, \"B ⊥ A\" is B's band signal orthogonalised to A's: the part of B that leakage from A cannot explain.", len(p.figures)))),
+		goapp.Div().ID("figures").Class("thumbs").Body(
+			goapp.Range(figs).Slice(func(i int) goapp.UI {
+				f := figs[i]
+				// an <img> of the figure's Blob: the SVG never passes
+				// through the page's Go code, and the browser decodes it
+				// off the script
+				return goapp.Button().Class("thumb").Title(f.Title).OnClick(p.onFigure(i), i).Body(
+					goapp.Img().Class("svgimg").Src(p.urls[f.Name+".svg"]).Alt(f.Title).Attr("decoding", "async").Attr("loading", "lazy"),
+					goapp.Span().Text(f.Title),
+				)
+			}),
+		),
+		goapp.If(len(downloads) > 0 && len(t.Header) > 0, goapp.Details().Class("downloads").Body(
+			goapp.Summary().Text(fmt.Sprintf("Single files (%d)", len(downloads))),
 			goapp.Range(downloads).Slice(func(i int) goapp.UI {
-				return goapp.A().Class("button quiet").Href(p.urls[downloads[i]]).Download(downloads[i]).Text("Download " + downloads[i])
+				return goapp.A().Class("button quiet").Href(p.urls[downloads[i]]).Download(downloads[i]).Text(downloads[i])
 			}),
 		)),
-		goapp.Range(figs).Slice(func(i int) goapp.UI {
-			if v, ok := p.scalpFigure(i); ok { // scalp.go: clickable electrodes
-				return v
-			}
-			f := figs[i]
-			// an <img> of the figure's Blob: the SVG never passes through
-			// the page's Go code, and the browser decodes it off the script
-			// Each figure opens on request: a time-frequency map is thousands
-			// of cells, and drawing dozens at once would hold up the page.
-			return goapp.Details().Class("figure").Body(
-				goapp.Summary().Text(f.Title),
-				goapp.Img().Class("svgimg").Src(p.urls[f.Name+".svg"]).Alt(f.Title).Attr("decoding", "async").Attr("loading", "lazy"),
-			)
-		}),
 	)
+}
+
+// renderBig is the figure shown at full width, or nothing.
+func (p *Page) renderBig(f *wire.Figure) goapp.UI {
+	if f == nil {
+		return nil
+	}
+	return goapp.Figure().ID("figure-large").Class("large").Body(
+		goapp.Div().Class("row").Body(
+			goapp.Button().ID("figure-close").Class("quiet").Text("Back to the thumbnails").OnClick(p.onFigure(-1)),
+			goapp.A().Class("button quiet").Href(p.urls[f.Name+".svg"]).Download(f.Name+".svg").Text("Download this figure (SVG)"),
+		),
+		// drawn inline, so a cell's title (its value) shows on hover, and a
+		// scalp map's electrodes can be clicked (scalp.go)
+		goapp.If(p.bigSVG != "" && isScalp(*f), p.scalpLarge(*f)),
+		goapp.If(p.bigSVG != "" && !isScalp(*f), goapp.Div().Class("svglarge").Body(goapp.Raw(svgOnly(p.bigSVG)))),
+		goapp.If(p.bigSVG == "", goapp.Img().Class("svglarge").Src(p.urls[f.Name+".svg"]).Alt(f.Title)),
+		goapp.FigCaption().Text(f.Title),
+	)
+}
+
+// onFigure shows figure i large (−1: the thumbnails only).
+func (p *Page) onFigure(i int) goapp.EventHandler {
+	return func(ctx goapp.Context, e goapp.Event) {
+		p.bigFig, p.bigSVG = i, ""
+		if i >= 0 && i < len(p.figBufs) {
+			p.bigSVG = bufferText(p.figBufs[i])
+		}
+		if i >= 0 {
+			ctx.Defer(func(goapp.Context) { focusField("figure-close") })
+		}
+	}
 }
 
 func (p *Page) onSortKey(col int) goapp.EventHandler {

@@ -2,7 +2,6 @@ package app
 
 import (
 	"fmt"
-	"html"
 	"strings"
 
 	goapp "github.com/maxence-charriere/go-app/v9/pkg/app"
@@ -21,82 +20,26 @@ import (
 // scalpState is what the page keeps for its scalp maps; a new run's
 // results start it afresh.
 type scalpState struct {
-	svgs map[string]string // figure name → SVG text, read from its buffer once
-	open map[string]bool   // figures whose SVG is in the page
-	msg  string            // what the last click did
+	msg string // what the last click did
 }
 
 // isScalp reports whether a figure is a clickable scalp map.
 func isScalp(f wire.Figure) bool { return strings.Contains(f.Name, "_scalp_") }
 
-// scalpSVG returns the SVG text of figure i, read from its buffer the
-// first time it is asked for.
-func (p *Page) scalpSVG(i int) string {
-	s := &p.scalp
-	if s.svgs == nil {
-		s.svgs = map[string]string{}
-	}
-	name := p.figures[i].Name
-	if v, ok := s.svgs[name]; ok {
-		return v
-	}
-	if i >= len(p.figBufs) {
-		return ""
-	}
-	v := svgOnly(bufferText(p.figBufs[i]))
-	s.svgs[name] = v
-	return v
-}
-
-// scalpFigure draws figure i when it is a scalp map; ok is false for
-// every other figure.
-func (p *Page) scalpFigure(i int) (goapp.UI, bool) {
-	f := p.figures[i]
-	if !isScalp(f) {
-		return nil, false
-	}
+// scalpLarge is the full-width view of a scalp map: its SVG inline, with a
+// hint, and the message of the last click under it.
+func (p *Page) scalpLarge(f wire.Figure) goapp.UI {
 	id, _, _ := strings.Cut(f.Name, "_scalp_")
 	hint := fmt.Sprintf("Click an electrode, or Tab to it and press Enter, to make it the seed channel of %s; the next run uses it.", id)
-	// The SVG goes into the box when the figure is first opened (as the
-	// other figures' images load when they are opened), written there
-	// directly rather than drawn by go-app: parsing a map's cells is then
-	// neither part of drawing the results nor of redrawing them. go-app
-	// leaves the box's content alone, since the box has no children of its
-	// own.
-	box := goapp.Div().Class("svgbox scalp-view").ID(scalpBoxID(f.Name)).DataSet("analysis", id).
-		OnClick(p.onScalpClick).OnKeyDown(p.onScalpKey)
-	return goapp.Details().Class("figure").OnToggle(p.onScalpToggle(f.Name), f.Name).Body(
-		goapp.Summary().Text(f.Title),
+	return goapp.Div().Body(
 		goapp.P().Class("hint").Text(hint),
-		box,
-		goapp.P().ID(scalpBoxID(f.Name)+"-msg").Class("okay scalp-msg").Aria("live", "polite"),
-	), true
+		goapp.Div().Class("svglarge scalp-view").ID(scalpBoxID(f.Name)).DataSet("analysis", id).
+			OnClick(p.onScalpClick).OnKeyDown(p.onScalpKey).Body(goapp.Raw(svgOnly(p.bigSVG))),
+		goapp.P().ID(scalpBoxID(f.Name)+"-msg").Class("okay scalp-msg").Aria("live", "polite").Text(p.scalp.msg),
+	)
 }
 
 func scalpBoxID(name string) string { return "scalp-" + name }
-
-// onScalpToggle puts a scalp map's SVG into the page when it is first
-// opened.
-func (p *Page) onScalpToggle(name string) goapp.EventHandler {
-	return func(ctx goapp.Context, e goapp.Event) {
-		ctx.PreventUpdate()
-		if !ctx.JSSrc().Get("open").Bool() || p.scalp.open[name] {
-			return
-		}
-		for i, f := range p.figures {
-			if f.Name == name {
-				if svg := p.scalpSVG(i); svg != "" {
-					setBodyHTML(scalpBoxID(name), svg)
-					if p.scalp.open == nil {
-						p.scalp.open = map[string]bool{}
-					}
-					p.scalp.open[name] = true
-				}
-				return
-			}
-		}
-	}
-}
 
 // scalpTarget finds the electrode an event happened on: its channel and
 // analysis, or "" when the event was elsewhere.
@@ -118,16 +61,7 @@ func (p *Page) onScalpClick(ctx goapp.Context, e goapp.Event) {
 		ctx.PreventUpdate()
 		return
 	}
-	p.setSeed(id, ch, scalpFigureOf(e))
-}
-
-// scalpFigureOf is the id of the scalp box an event happened in.
-func scalpFigureOf(e goapp.Event) string {
-	b := e.Get("target").Call("closest", ".scalp-view")
-	if !b.Truthy() {
-		return ""
-	}
-	return b.Get("id").String()
+	p.setSeed(id, ch)
 }
 
 func (p *Page) onScalpKey(ctx goapp.Context, e goapp.Event) {
@@ -139,16 +73,15 @@ func (p *Page) onScalpKey(ctx goapp.Context, e goapp.Event) {
 			return
 		}
 		e.PreventDefault()
-		p.setSeed(id, ch, scalpFigureOf(e))
+		p.setSeed(id, ch)
 	default:
 		ctx.PreventUpdate()
 	}
 }
 
 // setSeed makes channel the seed of the analysis whose id is id, opens
-// that analysis in the form, and says so under the map (box is the map's
-// element id).
-func (p *Page) setSeed(id, channel, box string) {
+// that analysis in the form, and says so under the map.
+func (p *Page) setSeed(id, channel string) {
 	msg := fmt.Sprintf("No analysis %s in the form, so the seed was not changed.", id)
 	for i := 0; i < p.form.Analyses; i++ {
 		pre := fmt.Sprintf("analyses.%d.", i)
@@ -162,9 +95,6 @@ func (p *Page) setSeed(id, channel, box string) {
 		break
 	}
 	p.scalp.msg = msg
-	if box != "" {
-		setBodyHTML(box+"-msg", html.EscapeString(msg))
-	}
 	// the handler redraws the results it belongs to; the form is the
 	// page's, so the page is redrawn
 	if p.ctx != nil {

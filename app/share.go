@@ -15,6 +15,10 @@ import (
 // and nothing else (never the data).
 const FragmentKey = "r="
 
+// RunSuffix after a shared recipe asks the page to run it as soon as a
+// recording is ready: "#r=…&run".
+const RunSuffix = "&run"
+
 // maxRecipe bounds an inflated recipe, so a hostile link cannot exhaust
 // memory.
 const maxRecipe = 1 << 20

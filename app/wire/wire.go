@@ -22,7 +22,8 @@ const (
 	OpSummary  = "summary"
 	OpProgress = "progress"
 	OpUnits    = "units"
-	OpResults  = "results" // bufs: results.json, then each figure's SVG
+	OpPhase    = "phase"   // which stage of a run the worker is in (Phase, Done, Total)
+	OpResults  = "results" // bufs: results.json, the archive of every output, then each figure's SVG
 	OpError    = "error"
 	OpFatal    = "fatal" // the worker could not start
 )
@@ -32,7 +33,20 @@ type Source struct {
 	Demo       bool   `json:"demo,omitempty"`       // build the demo data; no bytes
 	Name       string `json:"name,omitempty"`       // file name of the data bytes
 	EventsName string `json:"eventsName,omitempty"` // file name of the events bytes, if any
+	// the companions the page recognised by their content, whatever their
+	// names: a trials table (trial,<name>...) and a channels table
+	TrialsName   string `json:"trialsName,omitempty"`
+	ChannelsName string `json:"channelsName,omitempty"`
 }
+
+// Phases of a run, as OpPhase replies report them.
+const (
+	PhaseReading   = "reading"   // decoding the recording and planning
+	PhaseComputing = "computing" // the units (OpProgress counts them)
+	PhaseCombining = "combining" // rows, maps from every worker's units
+	PhaseDrawing   = "drawing"   // figures (Done of Total when counted)
+	PhasePacking   = "packing"   // the tables, the archive
+)
 
 // Request goes from the page to a worker.
 type Request struct {
@@ -50,6 +64,11 @@ type Request struct {
 
 	// OpPower: the channel to show.
 	Channel string `json:"channel,omitempty"`
+
+	// OpDescribe: what each file is (see all.Roles), in the order of the
+	// files sent. Empty with an empty Source.Name: the worker recognises
+	// each file by its content and replies with Roles and the Source.
+	Roles []string `json:"roles,omitempty"`
 }
 
 // Figure is one SVG figure.
@@ -69,6 +88,14 @@ type Reply struct {
 	// also the demo recipe.
 	Summary json.RawMessage `json:"summary,omitempty"`
 	Recipe  json.RawMessage `json:"recipe,omitempty"`
+	// and, for files sent with OpDescribe: what each was taken as, the
+	// source made of them, and the text of a recipe among them
+	Roles      []string `json:"roles,omitempty"`
+	Source     *Source  `json:"source,omitempty"`
+	RecipeText string   `json:"recipeText,omitempty"`
+
+	// OpPhase: the phase; with Done and Total when it counts.
+	Phase string `json:"phase,omitempty"`
 
 	// OpProgress: units this worker has finished, and the units of the whole
 	// run (every worker).
@@ -79,12 +106,23 @@ type Reply struct {
 	Units json.RawMessage `json:"units,omitempty"`
 
 	// OpResults: results.csv text, the figures' names and titles (their SVG
-	// travels as buffers: results.json first, then one per figure), and the
-	// warnings.
+	// travels as buffers: results.json first, then the .zip archive of every
+	// output as `amplink run --out` lays them out, then one per figure), the
+	// warnings, the resolved recipe (ResolvedRecipe)
+	// and how long each step of combining took (Timings, ms).
 	CSV      string   `json:"csv,omitempty"`
 	Figures  []Figure `json:"figures,omitempty"`
 	Warnings []string `json:"warnings,omitempty"`
+	Timings  []Timing `json:"timings,omitempty"`
+	// ResolvedRecipe is recipe.json byte for byte as the CLI writes it.
+	ResolvedRecipe string `json:"resolvedRecipe,omitempty"`
 
 	// OpPower: the figure.
 	Figure *Figure `json:"figure,omitempty"`
+}
+
+// Timing is how long one step of a worker's work took.
+type Timing struct {
+	Step string  `json:"step"`
+	MS   float64 `json:"ms"`
 }

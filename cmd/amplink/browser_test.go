@@ -3,11 +3,14 @@
 package main
 
 import (
+	"archive/zip"
 	"bufio"
 	"bytes"
 	"context"
 	"encoding/json"
 	"fmt"
+	"io"
+	"io/fs"
 	"math"
 	"net"
 	"net/http"
@@ -25,10 +28,12 @@ import (
 	"testing"
 	"time"
 
+	cdpbrowser "github.com/chromedp/cdproto/browser"
 	"github.com/chromedp/cdproto/page"
 	"github.com/chromedp/cdproto/runtime"
 	"github.com/chromedp/chromedp"
 
+	"amplink/app"
 	"amplink/app/wire"
 	"amplink/core/data"
 	"amplink/core/demo"
@@ -447,16 +452,25 @@ func (b *browser) formValues(t *testing.T) map[string]string {
 	return m
 }
 
+// pageTable is the results table as the page shows it: R holds each
+// cell's full value (its title when the page shows it rounded), S the text
+// shown; the analyses' heading rows are left out.
 type pageTable struct {
 	H []string   `json:"h"`
 	R [][]string `json:"r"`
+	S [][]string `json:"s"`
 }
 
 func (b *browser) table(t *testing.T) pageTable {
 	t.Helper()
-	s, err := chromedp.Run(b.ctx, chromedp.Evaluate[string](`JSON.stringify({
-		h: [...document.querySelectorAll("#results thead th")].map(e => e.textContent),
-		r: [...document.querySelectorAll("#results tbody tr")].map(tr => [...tr.children].map(td => td.textContent))})`))
+	s, err := chromedp.Run(b.ctx, chromedp.Evaluate[string](`(() => {
+		const rows = [...document.querySelectorAll("#results tbody tr:not(.group)")];
+		const shown = td => [...td.childNodes].filter(n => n.nodeType === 3).map(n => n.textContent).join("").trim();
+		return JSON.stringify({
+			h: [...document.querySelectorAll("#results thead th")].map(e => e.textContent),
+			r: rows.map(tr => [...tr.children].map(td => td.hasAttribute("title") ? td.getAttribute("title") : shown(td))),
+			s: rows.map(tr => [...tr.children].map(shown))});
+	})()`))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -588,6 +602,194 @@ func writeTrialsCSV(t *testing.T, dir string) (string, []byte) {
 
 func sq(x float64) float64 { return x * x }
 
+// loadDemo loads the demo and waits until it is ready (the state may
+// already read "loaded" from the recording before, so the summary is
+// checked too).
+func (b *browser) loadDemo(t *testing.T) {
+	t.Helper()
+	b.click(t, "load-demo")
+	if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`document.getElementById("status").dataset.state === "loaded" && (document.querySelector("#summary") || {textContent: ""}).textContent.includes("the demo:") && !document.getElementById("run-analysis").disabled`, chromedp.WithPollingTimeout(60*time.Second))); err != nil {
+		t.Fatalf("the demo did not load: %v", err)
+	}
+}
+
+// shot keeps a picture of the page as DIR/NAME.png when AMPLINK_SHOTS=DIR
+// is set, to look at.
+func (b *browser) shot(t *testing.T, name string) {
+	dir := os.Getenv("AMPLINK_SHOTS")
+	if dir == "" {
+		return
+	}
+	if png, err := chromedp.Run(b.ctx, chromedp.FullScreenshot(90)); err == nil {
+		os.WriteFile(filepath.Join(dir, name+".png"), png, 0o644)
+	}
+	// and each step on its own, at full size
+	for n := 1; n <= 5; n++ {
+		sel := fmt.Sprintf("section[aria-labelledby=step-%d]", n)
+		if png, err := chromedp.Run(b.ctx, chromedp.Screenshot(chromedp.CSS(sel))); err == nil {
+			os.WriteFile(filepath.Join(dir, fmt.Sprintf("%s-step%d.png", name, n)), png, 0o644)
+		}
+	}
+}
+
+// watchProgress records, from now on, every state of the progress line:
+// its phase, its text, and whether the bar is full.
+func (b *browser) watchProgress(t *testing.T) {
+	t.Helper()
+	_, err := chromedp.Run(b.ctx, chromedp.Evaluate[bool](`(() => {
+		window.__amplinkProgress = [];
+		const note = () => {
+			const bar = document.getElementById("progress"), txt = document.getElementById("progress-text");
+			if (!bar || !txt) return;
+			const full = bar.hasAttribute("value") && bar.max > 0 && bar.value >= bar.max;
+			const rec = [txt.dataset.phase || "", txt.textContent, full, performance.now()];
+			const last = window.__amplinkProgress[window.__amplinkProgress.length - 1];
+			if (!last || last[0] !== rec[0] || last[1] !== rec[1] || last[2] !== rec[2]) window.__amplinkProgress.push(rec);
+		};
+		window.__amplinkProgressObs = new MutationObserver(note);
+		window.__amplinkProgressObs.observe(document.body, {subtree: true, childList: true, attributes: true, characterData: true});
+		note();
+		return true;
+	})()`))
+	if err != nil {
+		t.Fatal(err)
+	}
+}
+
+// checkProgress checks what watchProgress saw: the phases of a run in
+// order, a count of units while computing, a full bar only once the
+// units are all done and never while combining, and never "not running"
+// beside a full bar.
+func (b *browser) checkProgress(t *testing.T) {
+	t.Helper()
+	s, err := chromedp.Run(b.ctx, chromedp.Evaluate[string](`(window.__amplinkProgressObs && window.__amplinkProgressObs.disconnect(), JSON.stringify(window.__amplinkProgress || []))`))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var recs [][]any
+	json.Unmarshal([]byte(s), &recs)
+	seen := map[string]bool{}
+	var lines []string
+	for _, r := range recs {
+		phase, text, full := r[0].(string), r[1].(string), r[2].(bool)
+		seen[phase] = true
+		lines = append(lines, fmt.Sprintf("%.0f %s %q full=%v", r[3].(float64), phase, text, full))
+		if full && (phase == "" || strings.Contains(text, "not running") || strings.Contains(text, "idle")) {
+			t.Errorf("a full bar beside %q", text)
+		}
+		if full && (phase == "combining" || phase == "packing" || phase == "reading") {
+			t.Errorf("a full bar while %s (%q)", phase, text)
+		}
+		if phase == "computing" && !strings.Contains(text, " of ") && text != "Computing…" {
+			t.Errorf("computing without a count: %q", text)
+		}
+	}
+	for _, ph := range []string{"reading", "computing", "combining"} {
+		if !seen[ph] {
+			t.Errorf("the run never showed the %s phase; progress: %s", ph, strings.Join(lines, "; "))
+		}
+	}
+	if testing.Verbose() {
+		t.Logf("progress: %s", strings.Join(lines, "; "))
+	}
+}
+
+// logMarks logs the page's own timing marks of the last run: load (the
+// recording built or read), run (Run to the drawn table), the units, and
+// combining (all units in to the results back).
+func (b *browser) logMarks(t *testing.T, what string) {
+	s, _ := chromedp.Run(b.ctx, chromedp.Evaluate[string](`JSON.stringify(Object.fromEntries(performance.getEntriesByType("mark").map(m => [m.name, m.startTime])))`))
+	m := map[string]float64{}
+	json.Unmarshal([]byte(s), &m)
+	sec := func(a, z string) string {
+		if m[a] == 0 || m[z] == 0 {
+			return "?"
+		}
+		return fmt.Sprintf("%.1f s", (m[z]-m[a])/1000)
+	}
+	t.Logf("timing: %s: run %s (units %s, combining %s, drawing %s); worker: %s", what,
+		sec("amplink-run", "amplink-done"), sec("amplink-run", "amplink-units"), sec("amplink-units", "amplink-results"),
+		sec("amplink-results", "amplink-done"), b.text(t, "#run-timings"))
+}
+
+// sameCell compares two results cells: equal text, or numbers equal to a
+// relative 1e-9.
+func sameCell(a, b string) bool {
+	if a == b {
+		return true
+	}
+	x, ex := strconv.ParseFloat(a, 64)
+	y, ey := strconv.ParseFloat(b, 64)
+	return ex == nil && ey == nil && math.Abs(x-y) <= 1e-9*math.Max(math.Abs(x), math.Abs(y))
+}
+
+// sameTable compares two results.csv texts apart from row order: the same
+// header, and the rows, ordered by their text, cell by cell (sameCell).
+func sameTable(a, b []byte) error {
+	ta, err := app.ParseTable(string(a))
+	if err != nil {
+		return err
+	}
+	tb, err := app.ParseTable(string(b))
+	if err != nil {
+		return err
+	}
+	if !slices.Equal(ta.Header, tb.Header) {
+		return fmt.Errorf("header %v, want %v", ta.Header, tb.Header)
+	}
+	if len(ta.Rows) != len(tb.Rows) {
+		return fmt.Errorf("%d rows, want %d", len(ta.Rows), len(tb.Rows))
+	}
+	key := func(r []string) string {
+		// the identifying columns: analysis, type, seed, target, and
+		// condition or cluster where present
+		k := strings.Join(r[:4], ",")
+		for _, name := range []string{"condition", "cluster"} {
+			if c := ta.Col(name); c >= 0 && c < len(r) {
+				k += "," + r[c]
+			}
+		}
+		return k
+	}
+	sort.SliceStable(ta.Rows, func(i, j int) bool { return key(ta.Rows[i]) < key(ta.Rows[j]) })
+	sort.SliceStable(tb.Rows, func(i, j int) bool { return key(tb.Rows[i]) < key(tb.Rows[j]) })
+	for i := range ta.Rows {
+		for j := range ta.Header {
+			if !sameCell(ta.Rows[i][j], tb.Rows[i][j]) {
+				return fmt.Errorf("row %s, %s: %q, want %q", key(ta.Rows[i]), ta.Header[j], ta.Rows[i][j], tb.Rows[i][j])
+			}
+		}
+	}
+	return nil
+}
+
+// sigDigits counts the significant digits of a number as written.
+func sigDigits(s string) int {
+	s = strings.TrimLeft(strings.TrimPrefix(s, "-"), "0.")
+	if i := strings.IndexAny(s, "eE"); i >= 0 {
+		s = s[:i]
+	}
+	return len(strings.ReplaceAll(s, ".", ""))
+}
+
+// checkPrecision: no number the table shows has more than 5 significant
+// digits, and every rounded cell keeps its full value in its title.
+func checkPrecision(t *testing.T, pt pageTable) {
+	t.Helper()
+	bad := 0
+	for i, row := range pt.S {
+		for j, cell := range row {
+			if _, err := strconv.ParseFloat(cell, 64); err != nil {
+				continue
+			}
+			if n := sigDigits(cell); n > 5 && bad < 5 {
+				bad++
+				t.Errorf("row %d, %s: %q has %d significant digits", i+1, pt.H[j], cell, n)
+			}
+		}
+	}
+}
+
 // trialsRecipe suits the trials CSV: C4 beta before the event against
 // delta after it on every channel.
 const trialsRecipe = `{
@@ -620,18 +822,82 @@ func TestBrowser(t *testing.T) {
 	}
 	b.origin.setPhase("idle")
 
-	t.Run("demo", func(t *testing.T) {
+	t.Run("order", func(t *testing.T) {
+		// on the bare page Run and the identity check wait for a recording,
+		// and say so; they stay disabled while the demo is built, and the
+		// reason goes once it is loaded, with no message left behind
+		waiting := func() (string, bool) {
+			s, _ := chromedp.Run(b.ctx, chromedp.Evaluate[string](`JSON.stringify([document.getElementById("run-analysis").disabled,
+				document.getElementById("identity-check").disabled, (document.getElementById("run-wait") || {textContent: ""}).textContent])`))
+			var v []any
+			json.Unmarshal([]byte(s), &v)
+			if len(v) != 3 {
+				return "", false
+			}
+			return v[2].(string), v[0].(bool) && v[1].(bool)
+		}
+		if why, off := waiting(); !off || !strings.Contains(why, "recording") {
+			t.Errorf("bare page: Run and Identity check disabled %v, reason %q", off, why)
+		}
+		if s := b.text(t, "#run-error"); s != "" {
+			t.Errorf("bare page shows a run error %q", s)
+		}
+		b.shot(t, "bare")
 		b.click(t, "load-demo")
+		if why, off := waiting(); !off || why == "" {
+			t.Errorf("while the demo is built: Run disabled %v, reason %q", off, why)
+		}
 		b.waitState(t, "loaded", 60*time.Second)
+		if why, off := waiting(); off || why != "" {
+			t.Errorf("demo loaded: Run still disabled (%q)", why)
+		}
+		if s := b.text(t, "#run-error") + b.text(t, ".field.invalid"); s != "" {
+			t.Errorf("demo loaded: a stale message %q", s)
+		}
+		// the demo explains itself, and says what was loaded
+		sum := b.text(t, "#summary")
+		for _, w := range []string{"continuous recording, cut into 180 epochs", "What the demo holds", "r ≈ 0.4 at Pz"} {
+			if !strings.Contains(sum, w) {
+				t.Errorf("demo summary lacks %q: %q", w, sum)
+			}
+		}
+	})
+
+	t.Run("demo", func(t *testing.T) {
+		if b.state(t) != "loaded" {
+			b.click(t, "load-demo")
+			b.waitState(t, "loaded", 60*time.Second)
+		}
+		b.watchProgress(t)
 		d := b.runAnalysis(t, 180*time.Second)
 		t.Logf("timing: demo analysis wall time %v", d.Round(time.Millisecond))
+		b.logMarks(t, "demo")
+		b.checkProgress(t)
 		pt := b.table(t)
 		checkHeader(t, pt.H)
 		if len(pt.R) == 0 {
 			t.Fatal("no result rows")
 		}
 		native := nativeRun(t, demo.Recipe(), wire.Source{Demo: true}, nil)
+		job.AddRecording(native, "demo")
 		compareNative(t, pt, native)
+		checkPrecision(t, pt)
+		// the demo's own recipe raises no caution
+		warn, _ := chromedp.Run(b.ctx, chromedp.Evaluate[string](`[...document.querySelectorAll(".warnings")].map(e => e.textContent).join(" ")`))
+		if strings.Contains(strings.Join(native.Warnings, " "), "runs past") || strings.Contains(warn, "runs past the epoch edge") {
+			t.Errorf("the demo recipe raises cautions: %v (page: %q)", native.Warnings, warn)
+		}
+		// rows are grouped under each analysis's question, with which p
+		// the rows report; significant rows are marked
+		groups, _ := chromedp.Run(b.ctx, chromedp.Evaluate[string](`[...document.querySelectorAll("#results tr.group")].map(e => e.textContent).join("\n")`))
+		for _, w := range []string{"beta-to-delta Across trials, does C4 15–25 Hz power", "p: t approximation", "n_eff drives p", "p_surr: surrogate p"} {
+			if !strings.Contains(groups, w) {
+				t.Errorf("group headings lack %q:\n%s", w, groups)
+			}
+		}
+		if n, _ := chromedp.Run(b.ctx, chromedp.Evaluate[int](`document.querySelectorAll("#results tr.sig .mark").length`)); n == 0 {
+			t.Error("no row is marked significant (the demo's beta-to-delta Pz row is)")
+		}
 		// the main columns are shown; asked, every column of results.csv
 		header, _ := native.Table()
 		if len(pt.H) >= len(header) {
@@ -658,7 +924,7 @@ func TestBrowser(t *testing.T) {
 		}
 		// every figure is shown and every download is offered as a Blob
 		s, err := chromedp.Run(b.ctx, chromedp.Evaluate[string](`JSON.stringify({
-			figs: document.querySelectorAll(".figure img.svgimg").length + document.querySelectorAll(".figure .scalp-view").length,
+			figs: document.querySelectorAll(".thumb img.svgimg").length,
 			links: [...document.querySelectorAll("a[download]")].filter(a => a.href.startsWith("blob:")).map(a => a.getAttribute("download"))})`))
 		if err != nil {
 			t.Fatal(err)
@@ -677,14 +943,15 @@ func TestBrowser(t *testing.T) {
 				os.WriteFile(shot, png, 0o644)
 			}
 		}
-		// open the first figure: it must draw (an SVG image of real size)
+		// open the first figure: it draws at the width of the column
 		if len(native.Figures) > 0 {
-			if err := chromedp.Do(b.ctx, chromedp.Click(chromedp.CSS(".figure summary"))); err != nil {
+			if _, err := chromedp.Run(b.ctx, chromedp.Evaluate[bool](`document.querySelector(".thumb").click(), true`)); err != nil {
 				t.Fatal(err)
 			}
-			if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`(() => { const i = document.querySelector(".figure img.svgimg"); return i.complete && i.naturalWidth > 100; })()`, chromedp.WithPollingTimeout(20*time.Second))); err != nil {
-				t.Errorf("the first figure did not draw: %v", err)
+			if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`(() => { const i = document.querySelector("#figure-large svg"); return !!i && i.getBoundingClientRect().width > 800 && !!i.querySelector("title"); })()`, chromedp.WithPollingTimeout(20*time.Second))); err != nil {
+				t.Errorf("the first figure did not draw large: %v", err)
 			}
+			b.shot(t, "figure-large")
 		}
 		want := map[string]bool{"results.csv": true, "results.json": true, "recipe.json": true}
 		for _, f := range native.Figures {
@@ -739,10 +1006,11 @@ func TestBrowser(t *testing.T) {
 			}
 		}
 		seed("C4")
-		// open the figure (its SVG goes into the page then) and click Pz's
-		// marker where it is drawn
-		if _, err := chromedp.Run(b.ctx, chromedp.Evaluate[bool](`(() => { const d = document.querySelector(`+strconv.Quote(box)+`).closest("details"); d.open = true; return true; })()`)); err != nil {
-			t.Fatal(err)
+		// open the map at full width from its thumbnail (its SVG goes into
+		// the page then) and click Pz's marker where it is drawn
+		open := `(() => { const t = [...document.querySelectorAll("button.thumb")].find(b => b.title.startsWith("beta-to-delta: ") && b.title.includes("with the C4 seed")); if (!t) return false; t.click(); return true; })()`
+		if ok, err := chromedp.Run(b.ctx, chromedp.Evaluate[bool](open)); err != nil || !ok {
+			t.Fatalf("no thumbnail of the C4 scalp map (%v)", err)
 		}
 		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`!!document.querySelector(`+strconv.Quote(box+` [data-channel="Pz"]`)+`)`, chromedp.WithPollingTimeout(10*time.Second))); err != nil {
 			t.Fatalf("no clickable scalp map: %v", err)
@@ -862,6 +1130,150 @@ func TestBrowser(t *testing.T) {
 		}
 	})
 
+	t.Run("edf", func(t *testing.T) {
+		// the demo's EDF+ with its trials and events tables, under names
+		// that say nothing of what they are, picked together as a user
+		// picks their own: each is recognised by its content; the power
+		// shows on the fresh form; the demo recipe, dropped next, runs
+		// with the rows amplink run gives; the archive is laid out as
+		// amplink run --out and amplink merge takes its results.csv
+		src := t.TempDir()
+		var so, se bytes.Buffer
+		if err := run(&so, &se, []string{"demo", "--out", src}); err != nil {
+			t.Fatalf("demo: %v %s", err, se.String())
+		}
+		dir := t.TempDir()
+		cp := func(from, to string) string {
+			b, err := os.ReadFile(filepath.Join(src, from))
+			if err != nil {
+				t.Fatal(err)
+			}
+			p := filepath.Join(dir, to)
+			if err := os.WriteFile(p, b, 0o644); err != nil {
+				t.Fatal(err)
+			}
+			return p
+		}
+		edfPath := cp("demo_edf.edf", "session.edf")
+		trialsPath := cp("demo_edf_trials.csv", "per-trial.csv")
+		eventsPath := cp("demo_continuous_events.tsv", "markers.tsv")
+		recipePath := cp("recipe.json", "settings.json")
+		cliOut := t.TempDir()
+		if err := run(&so, &se, []string{"run", "--recipe", recipePath, "--events", eventsPath, "--trials", trialsPath, "--out", cliOut, edfPath}); err != nil {
+			t.Fatalf("amplink run: %v %s", err, se.String())
+		}
+
+		b.pick(t, []string{trialsPath, edfPath, eventsPath})
+		b.waitState(t, "loaded", 60*time.Second)
+		roles, _ := chromedp.Run(b.ctx, chromedp.Evaluate[string](`JSON.stringify([...document.querySelectorAll("#file-roles select")].map(e => e.dataset.file + "=" + e.value))`))
+		if want := `["per-trial.csv=trials","session.edf=recording","markers.tsv=events"]`; roles != want {
+			t.Errorf("files taken as %s, want %s", roles, want)
+		}
+		if s := b.text(t, "#summary"); !strings.Contains(s, "session.edf") || !strings.Contains(s, "tone × 180") {
+			t.Errorf("summary %q", s)
+		}
+		// the power, before any analysis is described
+		b.click(t, "show-power")
+		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`!!document.querySelector("#tf-box #plot-area") || !!document.getElementById("power-error")`, chromedp.WithPollingTimeout(60*time.Second))); err != nil {
+			t.Fatalf("no power map on the fresh form: %v", err)
+		}
+		if e := b.text(t, "#power-error"); e != "" {
+			t.Fatalf("Show power on the fresh form: %q", e)
+		}
+		b.shot(t, "edf-power")
+
+		// the recipe on its own: it fills the form and runs at once
+		b.origin.setPhase("analysis")
+		b.watchProgress(t)
+		b.pick(t, []string{recipePath})
+		b.waitState(t, "running", 20*time.Second)
+		b.waitState(t, "done", 240*time.Second)
+		b.origin.setPhase("idle")
+		b.logMarks(t, "demo recipe on the EDF")
+		b.checkProgress(t)
+		b.shot(t, "edf-results")
+
+		cliCSV, err := os.ReadFile(filepath.Join(cliOut, "results.csv"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		cli, err := app.ParseTable(string(cliCSV))
+		if err != nil {
+			t.Fatal(err)
+		}
+		// the page's rows are the CLI's: text equal, numbers equal to 1e-9
+		// (the core compiled to wasm rounds a few last bits differently)
+		pt := b.table(t)
+		if len(pt.R) != len(cli.Rows) {
+			t.Fatalf("page %d rows, amplink run %d", len(pt.R), len(cli.Rows))
+		}
+		for i, row := range pt.R {
+			for j, h := range pt.H {
+				c := cli.Col(h)
+				if c < 0 {
+					t.Fatalf("page column %s is not in the CLI's results.csv", h)
+				}
+				if !sameCell(row[j], cli.Rows[i][c]) {
+					t.Errorf("row %d, %s: page %q, amplink run %q", i+1, h, row[j], cli.Rows[i][c])
+				}
+			}
+		}
+
+		// one archive of everything, as amplink run --out lays it out
+		dl := t.TempDir()
+		if _, err := chromedp.Call(b.ctx, cdpbrowser.SetDownloadBehavior, cdpbrowser.SetDownloadBehaviorParams{Behavior: cdpbrowser.SetDownloadBehaviorBehaviorAllow, DownloadPath: dl}); err != nil {
+			t.Fatal(err)
+		}
+		b.click(t, "download-all")
+		zipPath := filepath.Join(dl, "amplink-results.zip")
+		var zr *zip.ReadCloser
+		for end := time.Now().Add(20 * time.Second); time.Now().Before(end); time.Sleep(200 * time.Millisecond) {
+			if zr, err = zip.OpenReader(zipPath); err == nil {
+				break
+			}
+		}
+		if zr == nil {
+			t.Fatalf("no archive downloaded: %v", err)
+		}
+		defer zr.Close()
+		var inZip []string
+		files := map[string][]byte{}
+		for _, f := range zr.File {
+			inZip = append(inZip, f.Name)
+			rc, err := f.Open()
+			if err != nil {
+				t.Fatal(err)
+			}
+			files[f.Name], _ = io.ReadAll(rc)
+			rc.Close()
+		}
+		var inDir []string
+		filepath.WalkDir(cliOut, func(p string, d fs.DirEntry, err error) error {
+			if err == nil && !d.IsDir() {
+				rel, _ := filepath.Rel(cliOut, p)
+				inDir = append(inDir, filepath.ToSlash(rel))
+			}
+			return nil
+		})
+		sort.Strings(inZip)
+		sort.Strings(inDir)
+		if !slices.Equal(inZip, inDir) {
+			t.Errorf("archive holds %v\namplink run --out writes %v", inZip, inDir)
+		}
+		if err := sameTable(files["results.csv"], cliCSV); err != nil {
+			t.Errorf("the archive's results.csv differs from amplink run's (apart from row order): %v", err)
+		}
+		cliRecipe, _ := os.ReadFile(filepath.Join(cliOut, "recipe.json"))
+		if !bytes.Equal(files["recipe.json"], cliRecipe) {
+			t.Errorf("the archive's recipe.json differs from amplink run's:\n%s\nwant\n%s", files["recipe.json"], cliRecipe)
+		}
+		pageCSV := filepath.Join(t.TempDir(), "results.csv")
+		os.WriteFile(pageCSV, files["results.csv"], 0o644)
+		if err := run(&so, &se, []string{"merge", "--out", filepath.Join(t.TempDir(), "group.csv"), pageCSV}); err != nil {
+			t.Errorf("amplink merge refuses the page's results.csv: %v", err)
+		}
+	})
+
 	t.Run("events", func(t *testing.T) {
 		// a continuous recording with its events in a second file: the
 		// summary counts the events and the epoch settings take the type
@@ -930,8 +1342,7 @@ func TestBrowser(t *testing.T) {
 	})
 
 	t.Run("cancel", func(t *testing.T) {
-		b.click(t, "load-demo")
-		b.waitState(t, "loaded", 60*time.Second)
+		b.loadDemo(t)
 		b.setField(t, "f-analyses-0-permutations", "1000000")
 		b.origin.setPhase("analysis")
 		b.click(t, "run-analysis")
@@ -1009,22 +1420,64 @@ func TestBrowser(t *testing.T) {
 	})
 
 	t.Run("validation", func(t *testing.T) {
+		b.loadDemo(t)
 		// a reversed band: the core's message appears at that field, and
 		// Run refuses until it is fixed
 		b.setField(t, "f-analyses-0-seed-freq-0", "30")
 		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`(() => {
 			const f = document.getElementById("f-analyses-0-seed-freq-0").closest(".field");
-			return f.classList.contains("invalid") && f.querySelector(".why").textContent.startsWith("analyses[0].seed.freq");
+			const w = f && f.querySelector(".why");
+			return f.classList.contains("invalid") && !!w && w.textContent.startsWith("Analysis 1, seed band:") &&
+				w.querySelector(".path").textContent === "analyses[0].seed.freq";
 		})()`, chromedp.WithPollingTimeout(5*time.Second))); err != nil {
-			t.Fatalf("no message at the seed band field: %v", err)
+			t.Fatalf("no message in the form's words at the seed band field: %v (%q)", err, b.text(t, ".field.invalid .why"))
 		}
+		// the message does not widen its field
+		if wide, _ := chromedp.Run(b.ctx, chromedp.Evaluate[bool](`(() => {
+			const f = document.getElementById("f-analyses-0-seed-freq-0"), why = f.closest(".field").querySelector(".why");
+			return why.getBoundingClientRect().width > f.closest(".field").getBoundingClientRect().width + 1;
+		})()`)); wide {
+			t.Error("the message is wider than its field")
+		}
+		b.shot(t, "field-error")
 		b.click(t, "run-analysis")
 		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`(document.getElementById("run-error") || {textContent: ""}).textContent.includes("marked field")`, chromedp.WithPollingTimeout(5*time.Second))); err != nil {
 			t.Fatalf("Run did not refuse the bad recipe: %v", err)
 		}
+		if s := b.text(t, "#run-error"); !strings.Contains(s, "Analysis 1, seed band") || strings.Contains(s, "analyses[0]") {
+			t.Errorf("run message %q is not in the form's words", s)
+		}
+		// its link brings the field into view
+		b.click(t, "run-error-field")
+		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`document.activeElement && document.activeElement.id === "f-analyses-0-seed-freq-0"`, chromedp.WithPollingTimeout(5*time.Second))); err != nil {
+			t.Errorf("the message's link did not bring the field into view: %v", err)
+		}
 		b.setField(t, "f-analyses-0-seed-freq-0", "15")
-		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`document.querySelectorAll(".field.invalid").length === 0`, chromedp.WithPollingTimeout(5*time.Second))); err != nil {
+		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`document.querySelectorAll(".field.invalid").length === 0 && !document.getElementById("run-error")`, chromedp.WithPollingTimeout(5*time.Second))); err != nil {
 			t.Fatalf("the message stayed after the fix: %v", err)
+		}
+		// an unknown channel is caught while typing
+		b.setField(t, "f-analyses-0-seed-channel", "C44")
+		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`(document.querySelector(".field.invalid .why") || {textContent: ""}).textContent.includes("\"C44\" is not a channel")`, chromedp.WithPollingTimeout(5*time.Second))); err != nil {
+			t.Errorf("an unknown channel was not caught while typing: %v", err)
+		}
+		b.setField(t, "f-analyses-0-seed-channel", "C4")
+		// a new analysis, and a switched type, mark nothing the user has
+		// not typed in yet
+		b.click(t, "add-window")
+		n, _ := chromedp.Run(b.ctx, chromedp.Evaluate[int](`document.querySelectorAll(".analysis").length`))
+		last := fmt.Sprintf("f-analyses-%d-type", n-1)
+		b.setField(t, last, "comodulogram")
+		time.Sleep(300 * time.Millisecond)
+		if s := b.text(t, ".field.invalid .why"); s != "" {
+			t.Errorf("a fresh analysis shows %q before anything was typed", s)
+		}
+		if has, _ := chromedp.Run(b.ctx, chromedp.Evaluate[bool](fmt.Sprintf(`!!document.getElementById("f-analyses-%d-covariates")`, n-1))); has {
+			t.Error("a cross-frequency map offers covariates")
+		}
+		b.click(t, "edit-analysis-0") // the first analysis open again, for the link test
+		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](`!!document.getElementById("f-analyses-0-permutations")`, chromedp.WithPollingTimeout(5*time.Second))); err != nil {
+			t.Fatalf("analysis 1 did not open again: %v", err)
 		}
 	})
 

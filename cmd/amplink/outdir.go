@@ -1,10 +1,8 @@
 package main
 
 import (
-	"bytes"
 	"errors"
 	"fmt"
-	"io"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -99,57 +97,31 @@ func writeOutputs(dir string, res *report.Results, extra ...namedFile) error {
 		return err
 	}
 	defer os.RemoveAll(stage)
+	// the same files, in the same layout, as the page's archive
+	files, err := report.Outputs(res)
+	if err != nil {
+		return err
+	}
+	for _, f := range extra {
+		files = append(files, report.OutFile{Name: f.name, Data: f.data})
+	}
 	names := map[string]bool{}
-	write := func(name string, fill func(w io.Writer) error) error {
-		if names[name] {
-			return fmt.Errorf("run: two outputs would both be named %s", name)
+	var top []string
+	for _, f := range files {
+		if names[f.Name] {
+			return fmt.Errorf("run: two outputs would both be named %s", f.Name)
 		}
-		names[name] = true
-		var b bytes.Buffer
-		if err := fill(&b); err != nil {
-			return err
-		}
-		p := filepath.Join(stage, name)
+		names[f.Name] = true
+		p := filepath.Join(stage, filepath.FromSlash(f.Name))
 		if err := os.MkdirAll(filepath.Dir(p), 0o755); err != nil {
 			return err
 		}
-		return os.WriteFile(p, b.Bytes(), 0o644)
-	}
-	if err := write("results.json", func(w io.Writer) error { return report.WriteJSON(w, res) }); err != nil {
-		return err
-	}
-	if err := write("recipe.json", func(w io.Writer) error { _, err := w.Write(res.Recipe); return err }); err != nil {
-		return err
-	}
-	names0 := []string{"results.json", "recipe.json"}
-	for _, f := range extra {
-		if err := write(f.name, func(w io.Writer) error { _, err := w.Write(f.data); return err }); err != nil {
+		if err := os.WriteFile(p, f.Data, 0o644); err != nil {
 			return err
 		}
-		names0 = append(names0, f.name)
-	}
-	// Distinct channels may sanitise alike (A/B, A_B): unique, stable names.
-	var mn, fn []string
-	for i := range res.Maps {
-		mn = append(mn, res.Maps[i].Name)
-	}
-	for i := range res.Figures {
-		fn = append(fn, res.Figures[i].Name)
-	}
-	mapNames, figNames := report.UniqueNames(mn, '_'), report.UniqueNames(fn, '_')
-	for i := range res.Maps {
-		m := &res.Maps[i]
-		if err := write(filepath.Join("maps", mapNames[i]+".csv"), func(w io.Writer) error { return report.WriteMapCSV(w, m) }); err != nil {
-			return err
+		if !strings.Contains(f.Name, "/") && f.Name != "results.csv" {
+			top = append(top, f.Name)
 		}
-	}
-	for i, f := range res.Figures {
-		if err := write(filepath.Join("figures", figNames[i]+".svg"), func(w io.Writer) error { _, err := io.WriteString(w, f.SVG); return err }); err != nil {
-			return err
-		}
-	}
-	if err := write("results.csv", func(w io.Writer) error { return report.WriteCSV(w, res) }); err != nil {
-		return err
 	}
 	// Everything is written: replace the earlier run's outputs.
 	if err := os.MkdirAll(dir, 0o755); err != nil {
@@ -175,7 +147,7 @@ func writeOutputs(dir string, res *report.Results, extra ...namedFile) error {
 			}
 		}
 	}
-	for _, name := range append(names0, "results.csv") {
+	for _, name := range append(top, "results.csv") {
 		if err := os.Rename(filepath.Join(stage, name), filepath.Join(dir, name)); err != nil {
 			return err
 		}

@@ -294,6 +294,8 @@ func relativize(name string, b []byte) []byte {
 		if i, j := strings.Index(s, appJS), strings.Index(s, start); i >= 0 && j > i {
 			s = s[:i] + start + s[i:j] + s[j+len(start):]
 		}
+		// go-app forbids zooming; figures and tables must be zoomable
+		s = strings.ReplaceAll(s, `, maximum-scale=1, user-scalable=0`, ``)
 	case "app-worker.js":
 		s = strings.Replace(s, `["/",`, `["./",`, 1)
 		s = strings.ReplaceAll(s, `,"/",`, `,"./",`)

@@ -424,3 +424,15 @@ func TestServeSIGTERMRemovesTempDir(t *testing.T) {
 		t.Fatalf("temporary site %s is still there (%v)", dir, err)
 	}
 }
+
+// TestSiteZoom: the page may be zoomed (go-app's own viewport forbids it).
+func TestSiteZoom(t *testing.T) {
+	dir, _ := testSite(t)
+	b, err := os.ReadFile(filepath.Join(dir, "index.html"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if s := string(b); strings.Contains(s, "user-scalable=0") || strings.Contains(s, "maximum-scale=1") || !strings.Contains(s, `name="viewport"`) {
+		t.Errorf("viewport forbids zooming or is missing")
+	}
+}

@@ -71,7 +71,7 @@ func Group(rows []report.Row) []report.Figure {
 		}
 		opt := plot.GroupDotsOptions{
 			Frame: plot.Frame{Title: title, XLabel: t.id.Method + " r"},
-			Group: &plot.Interval{Mean: g.R, Lo: lo, Hi: hi, Label: "group (mean Fisher z)", Note: note},
+			Group: &plot.Interval{Mean: g.R, Lo: lo, Hi: hi, Label: "group: mean Fisher z", Note: note},
 		}
 		svg, _ := plot.GroupDots(t.recs, t.rs, opt)
 		name := "group_" + t.id.Analysis + "_" + t.id.Seed + "_" + t.id.Target

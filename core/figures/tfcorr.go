@@ -75,8 +75,11 @@ func (d *figDraw) tfCorr(i int) {
 			seedName = e.Channels[seeds[0]].Name
 		}
 		title := fmt.Sprintf("%s: %s seed with %s power", a.ID, seedName, name)
-		if lab != nil {
+		switch {
+		case lab != nil && len(outline) > 0:
 			title += fmt.Sprintf("; outlined: cluster p ≤ %g", figClusterP)
+		case lab != nil:
+			title += fmt.Sprintf("; no cluster at p ≤ %g", figClusterP)
 		}
 		svg, _ := plot.TFCorr(m.Values, freqs, times, lab, outline, plot.TFCorrOptions{
 			Frame:     figFrame(title, 400, 270),

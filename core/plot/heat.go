@@ -152,6 +152,14 @@ func (d *svgDoc) heatmap(g Geometry, xe, ye []float64, vals [][]float64, s *Scal
 	for j, x := range xe {
 		xp[j] = g.px(x)
 	}
+	if len(vals) > 0 && len(vals)*len(vals[0]) > rasterCells {
+		yp := make([]float64, len(ye))
+		for i, y := range ye {
+			yp[i] = g.py(y)
+		}
+		d.rasterHeatmap(g, xp, yp, vals, s, index)
+		return
+	}
 	var paths [lutSize + 1]strings.Builder
 	for i, row := range vals {
 		y0, y1 := g.py(ye[i]), g.py(ye[i+1])

@@ -86,6 +86,7 @@ func Scatter(x, y []float64, opt ScatterOptions) (string, Geometry) {
 	if len(xs) == 0 {
 		d.text(g.Left+g.Width/2, g.Top+g.Height/2, "middle", 0, 0, "no finite pairs", ` fill="#666666"`)
 	}
+	d.fitLine(g, xs, ys)
 	d.raw(`<g fill="`, LineA, `" fill-opacity="0.45" stroke="`, lineAEdge, `" stroke-opacity="0.8" stroke-width="0.5">`+"\n")
 	for k := range xs {
 		px, py := g.ToPixel(xs[k], ys[k])
@@ -178,4 +179,51 @@ func AverageRanks(dst, x []float64) []float64 {
 		i = j
 	}
 	return dst
+}
+
+// fitLine draws the least-squares line of y on x across the plot area,
+//
+//	y = ȳ + b·(x − x̄),  b = Σ(x − x̄)(y − ȳ) / Σ(x − x̄)²
+//
+// (on the ranks when the points are ranks), so the direction and strength
+// of the relation are seen at once. With fewer than three points, or x
+// constant, there is no line.
+func (d *svgDoc) fitLine(g Geometry, xs, ys []float64) {
+	n := float64(len(xs))
+	if len(xs) < 3 {
+		return
+	}
+	var mx, my float64
+	for i := range xs {
+		mx += xs[i]
+		my += ys[i]
+	}
+	mx, my = mx/n, my/n
+	var sxy, sxx float64
+	for i := range xs {
+		sxy += (xs[i] - mx) * (ys[i] - my)
+		sxx += (xs[i] - mx) * (xs[i] - mx)
+	}
+	if sxx == 0 || !finite(sxy/sxx) {
+		return
+	}
+	b := sxy / sxx
+	// clip to the plot area: x from XMin to XMax, then y into [YMin, YMax]
+	x0, x1 := g.XMin, g.XMax
+	at := func(x float64) float64 { return my + b*(x-mx) }
+	clip := func(x float64) float64 {
+		y := at(x)
+		switch {
+		case y > g.YMax:
+			return mx + (g.YMax-my)/b
+		case y < g.YMin:
+			return mx + (g.YMin-my)/b
+		}
+		return x
+	}
+	x0, x1 = clip(x0), clip(x1)
+	px0, py0 := g.ToPixel(x0, at(x0))
+	px1, py1 := g.ToPixel(x1, at(x1))
+	d.raw(`<line x1="`, num(px0), `" y1="`, num(py0), `" x2="`, num(px1), `" y2="`, num(py1),
+		`" stroke="#b5761a" stroke-width="1.6"><title>least-squares line, slope `, fmtSig(b, 3), `</title></line>`+"\n")
 }

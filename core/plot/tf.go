@@ -57,11 +57,25 @@ func TFPower(power [][]float64, freqs, times []float64, opt TFPowerOptions) (str
 		cmap:     newColourMap(power, opt.Min, opt.Max, opt.LogColour),
 		barTitle: axisTitle(opt.ColourLabel, opt.ColourUnit),
 	}
-	return h.draw(func(d *svgDoc, g Geometry, _, _ []float64) {
+	return h.draw(func(d *svgDoc, g Geometry, xe, _ []float64) {
+		d.zeroLine(g, xe)
 		for _, w := range opt.Windows {
 			d.window(g, w)
 		}
 	})
+}
+
+// zeroLine marks t = 0 (the event) with a dashed vertical line, white under
+// black so it shows on any cell, when the time axis spans it.
+func (d *svgDoc) zeroLine(g Geometry, xe []float64) {
+	if len(xe) < 2 || !(xe[0] < 0 && xe[len(xe)-1] > 0) {
+		return
+	}
+	x, y0 := g.ToPixel(0, g.YMin)
+	_, y1 := g.ToPixel(0, g.YMax)
+	l := `<line x1="` + num(x) + `" y1="` + num(y0) + `" x2="` + num(x) + `" y2="` + num(y1) + `"`
+	d.raw(l, ` stroke="#ffffff" stroke-width="2.4"/>`+"\n")
+	d.raw(l, ` stroke="#111111" stroke-width="1" stroke-dasharray="4 3"><title>t = 0 s: the event</title></line>`+"\n")
 }
 
 // window outlines w (clamped to the plot area) in white under black, so it
@@ -197,6 +211,7 @@ func TFCorr(values [][]float64, freqs, times []float64, clusters [][]int, outlin
 		barTitle: opt.ValueName,
 	}
 	return h.draw(func(d *svgDoc, g Geometry, xe, ye []float64) {
+		d.zeroLine(g, xe)
 		if clusters != nil && len(outline) > 0 {
 			p := clusterOutline(g, xe, ye, clusters, outline)
 			if p != "" {

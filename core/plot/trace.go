@@ -86,9 +86,11 @@ func EnvelopeTrace(times, a, b []float64, opt EnvelopeOptions) (string, Geometry
 	y := g.Top - 5
 	for s := 1; s >= 0; s-- {
 		st := styles[s]
-		tw := textWidth(st.name, font)
+		// the label's width is an estimate: leave room for a wider font
+		// (or wider glyphs such as ⊥), so the swatch never runs into it
+		tw := textWidth(st.name, font) * 1.15
 		d.text(x, y, "end", 0, 0, st.name, "")
-		x -= tw + 4
+		x -= tw + 8
 		dash := ""
 		if st.dash != "" {
 			dash = ` stroke-dasharray="` + st.dash + `"`

@@ -7,6 +7,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"path"
 	"sort"
 	"strings"
 	"time"
@@ -16,7 +17,8 @@ import (
 	"amplink/core/dataset"
 	"amplink/core/demo"
 	"amplink/core/format"
-	_ "amplink/core/format/all" // every reader
+	"amplink/core/format/all" // every reader, and Recognise
+	"amplink/core/format/csv"
 	"amplink/core/pipeline"
 	"amplink/core/recipe"
 	"amplink/core/report"
@@ -37,6 +39,7 @@ type Worker struct {
 	// kept between OpRun and OpFinish of the same Seq
 	plan *pipeline.Plan
 	seq  int
+	name string // the recording, for results.csv's recording column
 }
 
 // Files are the files that came with a request, by file name: bytes
@@ -110,6 +113,33 @@ func (w *Worker) HandleFiles(ctx context.Context, req wire.Request, list []forma
 	}
 	switch req.Op {
 	case wire.OpDescribe, wire.OpDemo:
+		var recognised []string
+		var recipeText string
+		if req.Op == wire.OpDescribe && !req.Source.Demo && (req.Source.Name == "" || len(req.Roles) > 0) {
+			roles := req.Roles
+			if len(roles) != len(list) {
+				roles = Recognise(list)
+			}
+			src, rf, err := SourceFor(list, roles)
+			if err != nil {
+				fail(err)
+				return
+			}
+			if rf != nil {
+				b, err := io.ReadAll(io.NewSectionReader(rf.R, 0, min(rf.Size, 1<<20)))
+				if err != nil {
+					fail(fmt.Errorf("%s: %w", rf.Name, err))
+					return
+				}
+				recipeText = string(b)
+			}
+			req.Source, recognised = src, roles
+			if src.Name == "" {
+				// a recipe on its own: its settings, and no recording
+				post(wire.Reply{Op: wire.OpSummary, Seq: req.Seq, RecipeText: recipeText, Roles: roles, Source: &src}, nil)
+				return
+			}
+		}
 		var r *recipe.Recipe
 		if len(req.Recipe) > 0 {
 			var err error
@@ -128,19 +158,25 @@ func (w *Worker) HandleFiles(ctx context.Context, req wire.Request, list []forma
 			fail(err)
 			return
 		}
-		rep := wire.Reply{Op: wire.OpSummary, Seq: req.Seq, Summary: sum}
+		rep := wire.Reply{Op: wire.OpSummary, Seq: req.Seq, Summary: sum, RecipeText: recipeText}
+		if recognised != nil {
+			src := req.Source
+			rep.Roles, rep.Source = recognised, &src
+		}
 		if req.Source.Demo {
 			rep.Recipe = demo.Recipe()
 		}
 		post(rep, nil)
 	case wire.OpRun:
 		w.plan = nil
+		post(wire.Reply{Op: wire.OpPhase, Seq: req.Seq, Phase: wire.PhaseReading}, nil)
 		p, err := w.planFor(req, files)
 		if err != nil {
 			fail(err)
 			return
 		}
 		units := p.Units()
+		post(wire.Reply{Op: wire.OpPhase, Seq: req.Seq, Phase: wire.PhaseComputing, Total: len(units)}, nil)
 		mine := Assign(units, max(req.Workers, 1))
 		if req.Worker < 0 || req.Worker >= len(mine) {
 			fail(fmt.Errorf("worker: number %d of %d", req.Worker, len(mine)))
@@ -153,7 +189,7 @@ func (w *Worker) HandleFiles(ctx context.Context, req wire.Request, list []forma
 			fail(err)
 			return
 		}
-		w.plan, w.seq = p, req.Seq
+		w.plan, w.seq, w.name = p, req.Seq, RecordingName(req.Source)
 		post(wire.Reply{Op: wire.OpUnits, Seq: req.Seq, Total: len(units)}, [][]byte{EncodeUnits(res)})
 	case wire.OpFinish:
 		if w.plan == nil || w.seq != req.Seq {
@@ -174,17 +210,27 @@ func (w *Worker) HandleFiles(ctx context.Context, req wire.Request, list []forma
 			}
 			all = append(all, u...)
 		}
+		post(wire.Reply{Op: wire.OpPhase, Seq: req.Seq, Phase: wire.PhaseCombining}, nil)
+		t0 := time.Now()
 		res, err := w.plan.Finish(ctx, all)
 		if err != nil {
 			fail(err)
 			return
 		}
+		AddRecording(res, w.name)
+		finish := time.Since(t0)
+		post(wire.Reply{Op: wire.OpPhase, Seq: req.Seq, Phase: wire.PhasePacking}, nil)
+		t1 := time.Now()
 		rep, out, err := ResultsReply(res)
 		if err != nil {
 			fail(err)
 			return
 		}
 		rep.Seq = req.Seq
+		rep.Timings = []wire.Timing{
+			{Step: "combine (rows, maps, figures)", MS: ms(finish)},
+			{Step: "pack (csv, json, archive)", MS: ms(time.Since(t1))},
+		}
 		post(rep, out)
 	case wire.OpPower:
 		fig, err := Power(req, files)
@@ -195,6 +241,82 @@ func (w *Worker) HandleFiles(ctx context.Context, req wire.Request, list []forma
 		post(wire.Reply{Op: wire.OpPower, Seq: req.Seq, Figure: fig}, nil)
 	default:
 		fail(fmt.Errorf("worker: unknown operation %q", req.Op))
+	}
+}
+
+// headLen is how much of each file Recognise looks at.
+const headLen = 64 << 10
+
+// Recognise says what each file is from its first bytes (all.Recognise).
+func Recognise(files []format.File) []string {
+	out := make([]string, len(files))
+	for i, f := range files {
+		head := make([]byte, min(f.Size, headLen))
+		n, err := f.R.ReadAt(head, 0)
+		if err != nil && err != io.EOF {
+			out[i] = string(all.Unknown)
+			continue
+		}
+		out[i] = string(all.Recognise(head[:n], f.Name))
+	}
+	return out
+}
+
+// SourceFor makes the source from files and what each is: the recording
+// with its events, channels and trials tables (the other files stay
+// available as siblings, such as a float32 epochs' sidecar), and the
+// recipe file if there is one. Exactly one file must be a recording.
+func SourceFor(files []format.File, roles []string) (wire.Source, *format.File, error) {
+	var src wire.Source
+	var rf *format.File
+	var recs []string
+	for i, f := range files {
+		switch all.Role(roles[i]) {
+		case all.Recording:
+			recs = append(recs, f.Name)
+		case all.Events:
+			src.EventsName = f.Name
+		case all.Channels:
+			src.ChannelsName = f.Name
+		case all.Trials:
+			src.TrialsName = f.Name
+		case all.Recipe:
+			rf = &files[i]
+		}
+	}
+	switch {
+	case len(recs) == 1:
+		src.Name = recs[0]
+	case len(recs) == 0 && rf != nil:
+		return src, rf, nil // a recipe alone: settings, no recording
+	case len(recs) == 0:
+		var names []string
+		for i, f := range files {
+			names = append(names, fmt.Sprintf("%s (%s)", f.Name, roles[i]))
+		}
+		return src, nil, fmt.Errorf("none of these files is a recording: %s", strings.Join(names, ", "))
+	default:
+		return src, nil, fmt.Errorf("%s are all recordings; the page analyses one at a time (amplink run takes several)", strings.Join(recs, ", "))
+	}
+	return src, rf, nil
+}
+
+func ms(d time.Duration) float64 { return float64(d.Microseconds()) / 1000 }
+
+// RecordingName is the recording column's value for a source: the file's
+// base name, as `amplink run` writes it, or "demo".
+func RecordingName(src wire.Source) string {
+	if src.Demo {
+		return "demo"
+	}
+	return path.Base(strings.ReplaceAll(src.Name, "\\", "/"))
+}
+
+// AddRecording gives every row the recording column, as `amplink run`
+// does, so that `amplink merge` takes the page's results.csv.
+func AddRecording(res *report.Results, name string) {
+	for i := range res.Rows {
+		res.Rows[i].Extra = append(res.Rows[i].Extra, report.Field{Name: "recording", Value: name})
 	}
 }
 
@@ -259,11 +381,58 @@ func Open(r *recipe.Recipe, src wire.Source, files Files) (*dataset.Dataset, err
 		}
 		ev = &e
 	}
-	ds, err := dataset.Open(r, f, ev, files)
+	// companions recognised by their content are seen under the names the
+	// core looks for beside the recording (<stem>_channels.tsv); a trials
+	// table is attached as `amplink run --trials` attaches one
+	sib := Files{}
+	for k, v := range files {
+		sib[k] = v
+	}
+	stem := dataset.Stem(src.Name)
+	if src.ChannelsName != "" {
+		c, ok := files[src.ChannelsName]
+		if !ok {
+			return nil, fmt.Errorf("worker: no bytes for %q", src.ChannelsName)
+		}
+		delete(sib, src.ChannelsName)
+		c.Name = src.ChannelsName
+		sib[stem+"_channels.tsv"] = c
+	}
+	var trials *format.File
+	if src.TrialsName != "" {
+		t, ok := files[src.TrialsName]
+		if !ok {
+			return nil, fmt.Errorf("worker: no bytes for %q", src.TrialsName)
+		}
+		trials = &t
+		delete(sib, src.TrialsName)
+		delete(sib, stem+"_trials.csv")
+		delete(sib, stem+".trials.csv")
+	}
+	ds, err := dataset.Open(r, f, ev, sib)
 	if errors.Is(err, data.ErrTooLarge) {
 		err = fmt.Errorf("%w. The page's workers hold at most %d MiB of samples each; the command-line tool (amplink run) holds as much as its --max-memory flag allows", err, data.MaxSampleBytes>>20)
 	}
-	return ds, err
+	if err != nil || trials == nil {
+		return ds, err
+	}
+	if ds.Epochs == nil {
+		if r == nil {
+			// described before any recipe: it is used once epochs are cut
+			ds.Notes = append(ds.Notes, trials.Name+": a trials table, used once the recording is cut into epochs")
+		} else {
+			ds.Notes = append(ds.Notes, trials.Name+" (trials table) is not used: the recording is not cut into epochs")
+		}
+		return ds, nil
+	}
+	t, err := csv.DecodeTrials(*trials)
+	if err != nil {
+		return nil, err
+	}
+	if err := ds.AttachTrials(t, trials.Name); err != nil {
+		return nil, err
+	}
+	return ds, nil
 }
 
 // Assign splits units over n workers: longest first onto the least loaded
@@ -308,15 +477,25 @@ func Assign(units []pipeline.Unit, n int) [][]int {
 // never through JSON: bufs[0] is results.json and bufs[1+i] the SVG of
 // figure i. The page makes them Blobs without copying them through Go.
 func ResultsReply(res *report.Results) (wire.Reply, [][]byte, error) {
-	var c, j bytes.Buffer
-	if err := report.WriteCSV(&c, res); err != nil {
+	files, err := report.Outputs(res)
+	if err != nil {
 		return wire.Reply{}, nil, err
 	}
-	if err := report.WriteJSON(&j, res); err != nil {
+	var csvText, jsonBytes []byte
+	for _, f := range files {
+		switch f.Name {
+		case "results.csv":
+			csvText = f.Data
+		case "results.json":
+			jsonBytes = f.Data
+		}
+	}
+	var z bytes.Buffer
+	if err := report.WriteZip(&z, files); err != nil {
 		return wire.Reply{}, nil, err
 	}
-	rep := wire.Reply{Op: wire.OpResults, CSV: c.String(), Warnings: res.Warnings}
-	bufs := [][]byte{j.Bytes()}
+	rep := wire.Reply{Op: wire.OpResults, CSV: string(csvText), Warnings: res.Warnings, ResolvedRecipe: string(res.Recipe)}
+	bufs := [][]byte{jsonBytes, z.Bytes()}
 	for _, f := range res.Figures {
 		rep.Figures = append(rep.Figures, wire.Figure{Name: f.Name, Title: f.Title})
 		bufs = append(bufs, []byte(f.SVG))

@@ -1,11 +1,13 @@
 package job
 
 import (
+	"archive/zip"
 	"bytes"
 	"context"
 	"encoding/json"
 	"errors"
 	"fmt"
+	"io"
 	"math"
 	"os"
 	"path/filepath"
@@ -216,8 +218,14 @@ func TestSplitEqualsRun(t *testing.T) {
 	if len(res.Rows) == 0 {
 		t.Fatal("no rows")
 	}
+	// the page's table has the recording column, as amplink run writes it
+	AddRecording(res, "trials.csv")
 	var want bytes.Buffer
 	if err := report.WriteCSV(&want, res); err != nil {
+		t.Fatal(err)
+	}
+	wantFiles, err := report.Outputs(res)
+	if err != nil {
 		t.Fatal(err)
 	}
 	for _, n := range []int{1, 2, 3} {
@@ -244,14 +252,46 @@ func TestSplitEqualsRun(t *testing.T) {
 			var rp replies
 			workers[0].Handle(context.Background(), wire.Request{Op: wire.OpFinish, Seq: 4}, names, unitBufs, rp.post)
 			rep, out := rp.last(t, wire.OpResults)
-			if len(out) != 1+len(rep.Figures) || len(rep.Figures) != len(res.Figures) {
+			if len(out) != 2+len(rep.Figures) || len(rep.Figures) != len(res.Figures) {
 				t.Fatalf("%d buffers for %d figures (native %d)", len(out), len(rep.Figures), len(res.Figures))
 			}
 			if !json.Valid(out[0]) {
 				t.Error("buffer 0 is not results.json")
 			}
+			// buffer 1 is the archive: the CLI's files, byte for byte
+			zr, err := zip.NewReader(bytes.NewReader(out[1]), int64(len(out[1])))
+			if err != nil {
+				t.Fatalf("buffer 1 is not a zip archive: %v", err)
+			}
+			got := map[string]string{}
+			for _, zf := range zr.File {
+				rc, _ := zf.Open()
+				b, _ := io.ReadAll(rc)
+				rc.Close()
+				got[zf.Name] = string(b)
+			}
+			for _, f := range wantFiles {
+				if got[f.Name] != string(f.Data) {
+					t.Errorf("archive: %s differs from the CLI's (or is missing)", f.Name)
+				}
+			}
+			if len(got) != len(wantFiles) {
+				t.Errorf("archive has %d files, the CLI writes %d", len(got), len(wantFiles))
+			}
+			if rep.ResolvedRecipe != string(res.Recipe) {
+				t.Errorf("recipe.json differs from the resolved recipe:\n%s\nwant\n%s", rep.ResolvedRecipe, res.Recipe)
+			}
+			var phases []string
+			for _, r := range rp.reps {
+				if r.Op == wire.OpPhase {
+					phases = append(phases, r.Phase)
+				}
+			}
+			if want := []string{wire.PhaseCombining, wire.PhasePacking}; !reflect.DeepEqual(phases, want) {
+				t.Errorf("finish phases %v, want %v", phases, want)
+			}
 			for i, f := range res.Figures {
-				if string(out[1+i]) != f.SVG || rep.Figures[i].Name != f.Name {
+				if string(out[2+i]) != f.SVG || rep.Figures[i].Name != f.Name {
 					t.Errorf("figure %d (%s) differs from the native one", i, f.Name)
 				}
 			}
@@ -354,5 +394,123 @@ func TestTooLarge(t *testing.T) {
 		if !strings.Contains(rep.Error, want) {
 			t.Errorf("error %q lacks %q", rep.Error, want)
 		}
+	}
+}
+
+// TestPowerFreshForm: the power map needs only a channel and the spectral
+// settings, so a form whose analysis is still empty gets its map, and a
+// wrong spectral setting is still reported by its field.
+func TestPowerFreshForm(t *testing.T) {
+	cases := []struct {
+		name, recipe, want string
+	}{
+		{"fresh form", `{"epochs":{"event":"tone","start":-1.5,"end":2},"spectral":{"method":"wavelet"},"analyses":[{"type":"trial-window"}]}`, ""},
+		{"one of two analyses complete", `{"epochs":{"event":"tone","start":-1.5,"end":2},"analyses":[{"type":"trial-window","seed":{"channel":"Pz","time":[0.3,0.8],"freq":[2,4]},"target":{"channel":"Pz","time":[0.3,0.8],"freq":[2,4]}},{"type":"envelope"}]}`, ""},
+		{"bad spectral setting", `{"epochs":{"event":"tone","start":-1.5,"end":2},"spectral":{"low":30,"high":10},"analyses":[{"type":"trial-window"}]}`, "spectral"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			fig, err := Power(wire.Request{Op: wire.OpPower, Source: wire.Source{Demo: true}, Recipe: []byte(c.recipe), Channel: "Pz"}, nil)
+			if c.want != "" {
+				if err == nil || !strings.Contains(err.Error(), c.want) {
+					t.Fatalf("error %v, want one naming %q", err, c.want)
+				}
+				return
+			}
+			if err != nil {
+				t.Fatal(err)
+			}
+			if !strings.Contains(fig.SVG, "<svg") {
+				t.Fatal("no figure")
+			}
+			if strings.Contains(c.name, "complete") && !strings.Contains(fig.SVG, "a1 seed") {
+				t.Error("the complete analysis's window is not outlined")
+			}
+		})
+	}
+}
+
+// TestCompanionsByContent: a trials table and a channels table whose names
+// say nothing are used when the page names their roles, as
+// `amplink run --trials` and a <stem>_channels.tsv are.
+func TestCompanionsByContent(t *testing.T) {
+	recBytes := trialsCSV()
+	var trials strings.Builder
+	trials.WriteString("trial,rt\n")
+	r, err := recipe.Parse([]byte(smallRecipe))
+	if err != nil {
+		t.Fatal(err)
+	}
+	base, err := Open(r, wire.Source{Name: "rec.csv"}, Files{"rec.csv": format.Bytes("rec.csv", recBytes)})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i := 0; i < base.Epochs.NTrials; i++ {
+		fmt.Fprintf(&trials, "%s,%d\n", dataset.TrialID(base.Epochs, i), 100+i)
+	}
+	chans := "name\ttype\tunits\tstatus\nC4\tEEG\tuV\tgood\nPz\tEEG\tuV\tbad\n"
+	files := Files{
+		"rec.csv":     format.Bytes("rec.csv", recBytes),
+		"values.txt":  format.Bytes("values.txt", []byte(trials.String())),
+		"montage.txt": format.Bytes("montage.txt", []byte(chans)),
+	}
+	ds, err := Open(r, wire.Source{Name: "rec.csv", TrialsName: "values.txt", ChannelsName: "montage.txt"}, files)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := ds.Epochs.TrialInfo[3].Extra["rt"]; got != "103" {
+		t.Errorf("trial 4's rt = %q, want 103 (from values.txt)", got)
+	}
+	if data.Lookup(ds.Epochs.Channels, "Pz") >= 0 {
+		t.Error("Pz is marked bad in montage.txt but was kept")
+	}
+	if !strings.Contains(strings.Join(ds.Notes, "; "), "montage.txt") {
+		t.Errorf("notes %v do not name montage.txt", ds.Notes)
+	}
+}
+
+// TestDescribeRecognises: files sent without roles are recognised by their
+// content; the reply says what each was taken as, and the roles the user
+// sets instead are followed.
+func TestDescribeRecognises(t *testing.T) {
+	rec := trialsCSV()
+	trials := []byte("trial,rt\n1,0.5\n")
+	recipeText := []byte(smallRecipe)
+	names := []string{"x.dat", "y.dat", "z.dat"}
+	bufs := [][]byte{trials, rec, recipeText}
+	var w Worker
+	var rp replies
+	w.Handle(context.Background(), wire.Request{Op: wire.OpDescribe, Seq: 1}, names, bufs, rp.post)
+	rep, _ := rp.last(t, wire.OpSummary)
+	if want := []string{"trials", "recording", "recipe"}; !reflect.DeepEqual(rep.Roles, want) {
+		t.Fatalf("roles %v, want %v", rep.Roles, want)
+	}
+	if rep.Source == nil || rep.Source.Name != "y.dat" || rep.Source.TrialsName != "x.dat" {
+		t.Fatalf("source %+v", rep.Source)
+	}
+	if rep.RecipeText != smallRecipe {
+		t.Errorf("recipe text %q", rep.RecipeText)
+	}
+	// the user says the first file is a recording too: two recordings
+	rp = replies{}
+	w.Handle(context.Background(), wire.Request{Op: wire.OpDescribe, Seq: 2, Roles: []string{"recording", "recording", "recipe"}}, names, bufs, rp.post)
+	if rep, _ := rp.last(t, wire.OpError); !strings.Contains(rep.Error, "one at a time") {
+		t.Errorf("two recordings: %q", rep.Error)
+	}
+}
+
+// TestPowerWindowsOnce: the demo's four trial-window analyses share one
+// seed window on C4; it is outlined once, with every label in one line.
+func TestPowerWindowsOnce(t *testing.T) {
+	fig, err := Power(wire.Request{Op: wire.OpPower, Source: wire.Source{Demo: true}, Recipe: demo.Recipe(), Channel: "C4"}, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// each box has a <title> and a text label
+	if n := strings.Count(fig.SVG, "<title>beta-to-delta seed"); n != 1 {
+		t.Errorf("the beta-to-delta seed window is outlined %d times", n)
+	}
+	if !strings.Contains(fig.SVG, "beta-to-delta seed, beta-to-delta-by-outcome seed") {
+		t.Error("coinciding windows are not labelled together")
 	}
 }

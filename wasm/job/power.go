@@ -1,6 +1,7 @@
 package job
 
 import (
+	"encoding/json"
 	"errors"
 	"fmt"
 
@@ -47,7 +48,7 @@ func demoDataset(r *recipe.Recipe) (*dataset.Dataset, error) {
 // and draws it with plot.TFPower, outlining the recipe's windows on that
 // channel. The seed and target windows can then be chosen on it.
 func Power(req wire.Request, files Files) (*wire.Figure, error) {
-	r, err := recipe.Parse(req.Recipe)
+	r, err := PowerRecipe(req.Recipe)
 	if err != nil {
 		return nil, err
 	}
@@ -105,7 +106,7 @@ func Power(req wire.Request, files Files) (*wire.Figure, error) {
 			if w.win == nil || !names(w.win.Channel, req.Channel) {
 				continue
 			}
-			wins = append(wins, plot.Window{Label: w.label, T0: w.win.Time[0], T1: w.win.Time[1], F0: w.win.Freq[0], F1: w.win.Freq[1]})
+			wins = addWindow(wins, plot.Window{Label: w.label, T0: w.win.Time[0], T1: w.win.Time[1], F0: w.win.Freq[0], F1: w.win.Freq[1]})
 		}
 	}
 	unit := "µV²"
@@ -131,4 +132,56 @@ func names(sel []string, ch string) bool {
 		}
 	}
 	return false
+}
+
+// PowerRecipe reads the settings the power map needs (epochs, spectral)
+// from a recipe whose analyses may still be unfinished: the map needs no
+// analysis, only the windows to outline of those analyses that are complete.
+// Errors in the settings themselves are reported as Parse reports them.
+func PowerRecipe(b []byte) (*recipe.Recipe, error) {
+	if r, err := recipe.Parse(b); err == nil {
+		return r, nil
+	}
+	var top map[string]any
+	if err := json.Unmarshal(b, &top); err != nil {
+		return recipe.Parse(b) // Parse names what is wrong with the JSON
+	}
+	list, _ := top["analyses"].([]any)
+	var keep []any
+	for _, a := range list {
+		top["analyses"] = []any{a}
+		one, _ := json.Marshal(top)
+		if _, err := recipe.Parse(one); err == nil {
+			keep = append(keep, a)
+		}
+	}
+	// ids must stay unique once the analyses that failed are left out
+	placeholder := len(keep) == 0
+	if placeholder {
+		keep = []any{map[string]any{"type": recipe.TypeEnvelope, "channels": "*", "freq": []any{8, 12}}}
+	}
+	top["analyses"] = keep
+	again, _ := json.Marshal(top)
+	r, err := recipe.Parse(again)
+	if err != nil {
+		return nil, err
+	}
+	if placeholder {
+		r.Analyses = nil
+	}
+	return r, nil
+}
+
+// addWindow adds a window to outline, or its label to a window already
+// there with the same bounds, so coinciding windows get one box and one
+// label ("a1 seed, a2 seed") rather than labels printed over each other.
+func addWindow(wins []plot.Window, w plot.Window) []plot.Window {
+	for i := range wins {
+		v := &wins[i]
+		if v.T0 == w.T0 && v.T1 == w.T1 && v.F0 == w.F0 && v.F1 == w.F1 {
+			v.Label += ", " + w.Label
+			return wins
+		}
+	}
+	return append(wins, w)
 }
