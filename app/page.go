@@ -216,32 +216,41 @@ func (p *Page) OnMount(ctx goapp.Context) {
 	p.later(p.advance)
 }
 
-// restoreLink fills the form from a shared link in the URL fragment.
+// restoreLink fills the form from a shared link in the URL fragment, in
+// two main-thread tasks: the recipe is decoded and parsed in this one (the
+// first parse compiles the parser's code), and the form that holds it is
+// drawn in the next, so that neither holds the page for long.
 func (p *Page) restoreLink() {
-	if frag := fragment(); strings.HasPrefix(strings.TrimPrefix(frag, "#"), FragmentKey) {
-		// "&run" asks for a run once a recording is ready
-		frag, run := strings.CutSuffix(frag, RunSuffix)
+	frag := fragment()
+	if !strings.HasPrefix(strings.TrimPrefix(frag, "#"), FragmentKey) {
+		return
+	}
+	// "&run" asks for a run once a recording is ready
+	frag, run := strings.CutSuffix(frag, RunSuffix)
+	b, err := DecodeFragment(frag)
+	var f *Form
+	if err == nil {
+		if f, err = FormFromJSON(b); err == nil {
+			f.Validate()
+		}
+	}
+	p.later(func(goapp.Context) {
+		if err != nil {
+			p.formErr = err.Error()
+		} else {
+			p.form = f
+			p.form.showAll = true
+			p.restored = "Settings restored from the link."
+			p.validate()
+		}
 		if run {
 			if p.ready() {
-				defer p.onRun(p.ctx, goapp.Event{})
+				p.onRun(p.ctx, goapp.Event{})
 			} else {
 				p.pendingRun = true
 			}
 		}
-		b, err := DecodeFragment(frag)
-		if err == nil {
-			var f *Form
-			if f, err = FormFromJSON(b); err == nil {
-				p.form = f
-				p.form.showAll = true
-				p.restored = "Settings restored from the link."
-				p.validate()
-			}
-		}
-		if err != nil {
-			p.formErr = err.Error()
-		}
-	}
+	})
 }
 
 // OnAppUpdate tells the user a new version is ready.
