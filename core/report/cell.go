@@ -1,51 +1,24 @@
 package report
 
-// Spreadsheets execute a cell that begins with =, +, - or @ as a formula
-// (and some treat a leading tab or carriage return the same way), so a
-// channel named "=1+2" must not reach results.csv as written. The usual
-// defence (common practice, OWASP "CSV injection") is a leading apostrophe,
-// which spreadsheets show as text and hide.
+import "amplink/core/format/csv"
 
-// needsQuote reports whether s would be taken for a formula, or is an
-// apostrophe followed by such a cell (so that QuoteCell stays invertible).
-// Numbers, negative ones included, are left alone.
-func needsQuote(s string) bool {
-	if s == "" {
-		return false
-	}
-	switch s[0] {
-	case '=', '@', '\t', '\r':
-		return true
-	case '+', '-':
-		return !isJSONNumber(s)
-	case '\'':
-		return needsQuote(s[1:])
-	}
-	return false
-}
+// QuoteCell is csv.QuoteCell: a leading apostrophe for a cell a
+// spreadsheet would run as a formula.
+func QuoteCell(s string) string { return csv.QuoteCell(s) }
 
-// QuoteCell returns s with a leading apostrophe when a spreadsheet would
-// execute it as a formula: s begins with =, @, a tab, a carriage return, or
-// with + or - without being a number. Numbers stay as they are.
-func QuoteCell(s string) string {
-	if needsQuote(s) {
-		return "'" + s
-	}
-	return s
-}
+// UnquoteCell is csv.UnquoteCell, which undoes QuoteCell.
+func UnquoteCell(s string) string { return csv.UnquoteCell(s) }
 
-// UnquoteCell undoes QuoteCell.
-func UnquoteCell(s string) string {
-	if len(s) > 1 && s[0] == '\'' && needsQuote(s[1:]) {
-		return s[1:]
-	}
-	return s
-}
+// isJSONNumber reports whether s follows the JSON number grammar (RFC 8259
+// section 6); see csv.IsNumber.
+func isJSONNumber(s string) bool { return csv.IsNumber(s) }
 
+// quoteCells and unquoteCells apply csv.QuoteCell and csv.UnquoteCell to
+// a record (results.csv and the maps; see core/format/csv/cell.go).
 func quoteCells(rec []string) []string {
 	var out []string
 	for i, c := range rec {
-		if q := QuoteCell(c); q != c {
+		if q := csv.QuoteCell(c); q != c {
 			if out == nil {
 				out = append([]string(nil), rec...)
 			}
@@ -60,6 +33,6 @@ func quoteCells(rec []string) []string {
 
 func unquoteCells(rec []string) {
 	for i, c := range rec {
-		rec[i] = UnquoteCell(c)
+		rec[i] = csv.UnquoteCell(c)
 	}
 }

@@ -127,43 +127,6 @@ func WriteMapCSV(w io.Writer, m *Map) error {
 	return cw.Error()
 }
 
-// isJSONNumber reports whether s follows the JSON number grammar (RFC 8259
-// section 6): -?(0|[1-9][0-9]*)(\.[0-9]+)?([eE][+-]?[0-9]+)?
-func isJSONNumber(s string) bool {
-	i := 0
-	digits := func() int {
-		j := i
-		for i < len(s) && s[i] >= '0' && s[i] <= '9' {
-			i++
-		}
-		return i - j
-	}
-	if i < len(s) && s[i] == '-' {
-		i++
-	}
-	switch {
-	case i < len(s) && s[i] == '0':
-		i++
-	case digits() == 0:
-		return false
-	}
-	if i < len(s) && s[i] == '.' {
-		i++
-		if digits() == 0 {
-			return false
-		}
-	}
-	if i < len(s) && (s[i] == 'e' || s[i] == 'E') {
-		i++
-		if i < len(s) && (s[i] == '+' || s[i] == '-') {
-			i++
-		}
-		if digits() == 0 {
-			return false
-		}
-	}
-	return i == len(s)
-}
 
 type jsonOut struct {
 	Columns  []string            `json:"columns"`

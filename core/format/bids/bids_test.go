@@ -1,6 +1,7 @@
 package bids
 
 import (
+	"bytes"
 	"encoding/json"
 	"errors"
 	"os"
@@ -231,5 +232,40 @@ func TestReadEventsEpoch(t *testing.T) {
 	}
 	if e.TrialInfo[1].Extra["response_time"] != "0.512" {
 		t.Errorf("trial info %+v", e.TrialInfo[1])
+	}
+}
+
+// The events and channels tables guard formula-like cells as results.csv
+// does (a leading apostrophe, common practice: OWASP "CSV injection") and
+// read them back unchanged.
+func TestWriteGuardsFormulas(t *testing.T) {
+	evs := []data.Event{{Onset: 1, Duration: 0, Type: "=cmd()", Extra: map[string]string{"+note": "@x"}}}
+	var b bytes.Buffer
+	if err := WriteEvents(&b, evs); err != nil {
+		t.Fatal(err)
+	}
+	if want := "onset\tduration\ttrial_type\t'+note\n1\t0\t'=cmd()\t'@x\n"; b.String() != want {
+		t.Errorf("events.tsv\n%q, want\n%q", b.String(), want)
+	}
+	back, err := ReadEvents(format.Bytes("e_events.tsv", b.Bytes()))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if back[0].Type != "=cmd()" || back[0].Extra["+note"] != "@x" {
+		t.Errorf("read back %+v", back[0])
+	}
+	b.Reset()
+	if err := WriteChannels(&b, []data.Channel{{Name: "-Fz", Type: "EEG", Unit: "µV"}}, nil); err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(b.String(), "'-Fz\tEEG\tµV\tgood") {
+		t.Errorf("channels.tsv %q", b.String())
+	}
+	infos, err := ReadChannels(format.Bytes("c_channels.tsv", b.Bytes()))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if infos[0].Name != "-Fz" {
+		t.Errorf("channel reads back as %q", infos[0].Name)
 	}
 }

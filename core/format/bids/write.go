@@ -9,6 +9,7 @@ import (
 	"strings"
 
 	"amplink/core/data"
+	"amplink/core/format/csv"
 )
 
 // WriteEvents writes events as a BIDS events.tsv: onset, duration and
@@ -38,7 +39,7 @@ func WriteEvents(w io.Writer, evs []data.Event) error {
 		if typ == "" {
 			typ = NA
 		}
-		fmt.Fprintf(bw, "%s\t%s\t%s", strconv.FormatFloat(e.Onset, 'f', -1, 64), strconv.FormatFloat(e.Duration, 'f', -1, 64), typ)
+		fmt.Fprintf(bw, "%s\t%s\t%s", strconv.FormatFloat(e.Onset, 'f', -1, 64), strconv.FormatFloat(e.Duration, 'f', -1, 64), csv.QuoteCell(typ))
 		for _, c := range cols {
 			v, ok := e.Extra[c]
 			if !ok || v == "" {
@@ -47,7 +48,7 @@ func WriteEvents(w io.Writer, evs []data.Event) error {
 			if strings.ContainsAny(v, "\t\n\r") {
 				return fmt.Errorf("bids: value %q of column %s contains a tab or line break", v, c)
 			}
-			bw.WriteString("\t" + v)
+			bw.WriteString("\t" + csv.QuoteCell(v))
 		}
 		bw.WriteByte('\n')
 	}
@@ -58,10 +59,16 @@ func prefixed(cols []string) string {
 	if len(cols) == 0 {
 		return ""
 	}
-	return "\t" + strings.Join(cols, "\t")
+	q := make([]string, len(cols))
+	for i, c := range cols {
+		q[i] = csv.QuoteCell(c)
+	}
+	return "\t" + strings.Join(q, "\t")
 }
 
 // WriteChannels writes a BIDS channels.tsv with name, type, units and status.
+// Like WriteEvents, it gives a cell a spreadsheet would run as a formula a
+// leading apostrophe (csv.QuoteCell), which the readers take off again.
 func WriteChannels(w io.Writer, chs []data.Channel, bad map[string]bool) error {
 	bw := bufio.NewWriter(w)
 	bw.WriteString("name\ttype\tunits\tstatus\n")
@@ -82,7 +89,7 @@ func WriteChannels(w io.Writer, chs []data.Channel, bad map[string]bool) error {
 				return fmt.Errorf("bids: %q contains a tab or line break", s)
 			}
 		}
-		fmt.Fprintf(bw, "%s\t%s\t%s\t%s\n", c.Name, typ, unit, status)
+		fmt.Fprintf(bw, "%s\t%s\t%s\t%s\n", csv.QuoteCell(c.Name), csv.QuoteCell(typ), csv.QuoteCell(unit), status)
 	}
 	return bw.Flush()
 }

@@ -21,7 +21,9 @@ const bom = "\xef\xbb\xbf"
 // lines, and trims spaces (and, with a comma delimiter, tabs) around every
 // field. With a comma delimiter a field may be quoted as in RFC 4180 ("a ""b"""
 // is a "b"), but a quoted field cannot span lines. With a tab delimiter,
-// quotes are ordinary characters, as in IANA text/tab-separated-values.
+// quotes are ordinary characters, as in IANA text/tab-separated-values. A
+// field that QuoteCell protected from spreadsheets ('=1+2) reads back as it
+// was (=1+2).
 type Reader struct {
 	// Comma is the field delimiter. Zero means detect it from the first
 	// non-blank line: a tab if that line holds one, else a comma.
@@ -172,7 +174,21 @@ func (r *Reader) trim(s string) string {
 	return s[i:j]
 }
 
+// split splits line s into r.fields, taking off the apostrophe that
+// QuoteCell puts before a cell a spreadsheet would run as a formula.
 func (r *Reader) split(s string) error {
+	if err := r.splitRaw(s); err != nil {
+		return err
+	}
+	for i, f := range r.fields {
+		if len(f) > 1 && f[0] == '\'' {
+			r.fields[i] = UnquoteCell(f)
+		}
+	}
+	return nil
+}
+
+func (r *Reader) splitRaw(s string) error {
 	r.fields = r.fields[:0]
 	if r.Comma == '\t' || strings.IndexByte(s, '"') < 0 {
 		for {

@@ -152,8 +152,11 @@ func appendNames(buf []byte, chs []data.Channel) ([]byte, error) {
 	return append(buf, '\n'), nil
 }
 
-// appendField appends s, quoted when the reader would otherwise change it.
+// appendField appends s, quoted when the reader would otherwise change it,
+// with a leading apostrophe when a spreadsheet would run it as a formula
+// (QuoteCell; the reader takes it off again).
 func appendField(buf []byte, s string) []byte {
+	s = QuoteCell(s)
 	if !strings.ContainsAny(s, ",\"\t") && strings.Trim(s, " ") == s {
 		return append(buf, s...)
 	}
