@@ -63,14 +63,20 @@ func openFile(path string) (format.File, *os.File, error) {
 	return format.File{Name: path, R: f, Size: st.Size()}, f, nil
 }
 
-// dirSiblings opens files beside the input, in its directory.
+// dirSiblings opens files beside the input, in its directory, or with
+// nested set (a BIDS dataset's files, for the core) by their
+// slash-separated path below dir.
 type dirSiblings struct {
 	dir    string
+	nested bool
 	opened []*os.File
 }
 
 func (d *dirSiblings) Open(name string) (format.File, error) {
 	p := filepath.Join(d.dir, filepath.Base(name))
+	if d.nested {
+		p = filepath.Join(d.dir, filepath.FromSlash(name))
+	}
 	ff, f, err := openFile(p)
 	if errors.Is(err, fs.ErrNotExist) {
 		return format.File{}, fmt.Errorf("%s: %w", p, format.ErrNoSibling)

@@ -94,7 +94,7 @@ func (sf *studyFlags) find(stdout io.Writer) (*datasetRun, error) {
 			parts = append(parts, p)
 		}
 	}
-	open := &rootOpener{root: sf.root}
+	open := &dirSiblings{dir: sf.root, nested: true}
 	st, err := study.Find(paths, open, study.Filter{Task: sf.task, Session: sf.session, Run: sf.run, Participants: parts, GroupColumn: sf.groupColumn})
 	open.Close()
 	if err != nil {
@@ -112,7 +112,7 @@ func (d *datasetRun) inputs() []input {
 	var in []input
 	for i := range d.study.Recordings {
 		r := &d.study.Recordings[i]
-		sib := &rootOpener{root: d.root}
+		sib := &dirSiblings{dir: d.root, nested: true}
 		in = append(in, input{path: filepath.Join(d.root, filepath.FromSlash(r.Path)), sib: &studySiblings{Siblings: r.Siblings(sib), open: sib}})
 	}
 	return in
@@ -210,37 +210,10 @@ func (d *datasetRun) summaryJSON(failed []string) ([]byte, error) {
 	return append(b, '\n'), err
 }
 
-// rootOpener opens a dataset's files by their slash-separated path below
-// root, for the core.
-type rootOpener struct {
-	root   string
-	opened []*os.File
-}
-
-func (o *rootOpener) Open(rel string) (format.File, error) {
-	p := filepath.Join(o.root, filepath.FromSlash(rel))
-	ff, f, err := openFile(p)
-	if errors.Is(err, fs.ErrNotExist) {
-		return format.File{}, fmt.Errorf("%s: %w", p, format.ErrNoSibling)
-	}
-	if err != nil {
-		return format.File{}, err
-	}
-	o.opened = append(o.opened, f)
-	return ff, nil
-}
-
-func (o *rootOpener) Close() {
-	for _, f := range o.opened {
-		f.Close()
-	}
-	o.opened = nil
-}
-
 // studySiblings is a recording's companions, closed after its run.
 type studySiblings struct {
 	format.Siblings
-	open *rootOpener
+	open *dirSiblings
 }
 
 func (s *studySiblings) Close() { s.open.Close() }

@@ -214,18 +214,11 @@ func Scalp(sensors []Sensor, opt ScalpOptions) (string, Geometry) {
 		opt.ValueName = "r"
 	}
 	_, _, font := opt.Frame.size()
-	lim := opt.Limit
-	if !(lim > 0) || !finite(lim) {
-		lim = 0
-		for _, s := range sensors {
-			if finite(s.Value) {
-				lim = math.Max(lim, math.Abs(s.Value))
-			}
-		}
-		if lim == 0 {
-			lim = 1
-		}
+	vs := make([]float64, len(sensors))
+	for i, s := range sensors {
+		vs[i] = s.Value
 	}
+	lim := symLimit([][]float64{vs}, opt.Limit)
 	bar := newColourBar(Heath, -lim, lim, false, opt.ValueName)
 	hd, l, d := headLayout(opt.Frame, sensors, bar.room(font), 1)
 	g := hd.g
@@ -393,18 +386,11 @@ func Network(sensors []Sensor, links []Link, opt NetworkOptions) (string, Geomet
 		}
 	}
 	_, _, font := opt.Frame.size()
-	lim := opt.Limit
-	if !(lim > 0) || !finite(lim) {
-		lim = 0
-		for _, ln := range links {
-			if finite(ln.R) {
-				lim = math.Max(lim, math.Abs(ln.R))
-			}
-		}
-		if lim == 0 {
-			lim = 1
-		}
+	rs := make([]float64, len(links))
+	for i, ln := range links {
+		rs[i] = ln.R
 	}
+	lim := symLimit([][]float64{rs}, opt.Limit)
 	bar := newColourBar(Heath, -lim, lim, false, opt.ValueName)
 	lines := 2
 	if opt.ArrowNote != "" {

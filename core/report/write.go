@@ -127,7 +127,6 @@ func WriteMapCSV(w io.Writer, m *Map) error {
 	return cw.Error()
 }
 
-
 type jsonOut struct {
 	Columns  []string            `json:"columns"`
 	Rows     []json.RawMessage   `json:"rows"`
