@@ -61,6 +61,8 @@ type Page struct {
 	total      int
 	unitBufs   []buffer
 	unitsIn    int
+	drawBufs   []buffer // the late figure units' results, from OpDrawn
+	drawWant   int      // workers asked for late figure units
 	started    float64
 	status     string
 	runErr     string
@@ -322,6 +324,35 @@ func (p *Page) handleReply(k int, rep wire.Reply, bufs []buffer) {
 			}
 			p.pool.send(0, wire.Request{Op: wire.OpFinish, Seq: p.seq}, names, p.unitBufs)
 			p.phase = wire.PhaseCombining
+		}
+	case wire.OpLate:
+		// the power maps the rows chose: one share per worker, handed back
+		// to worker 0 (OpDraw) when every share is in
+		n := p.pool.size()
+		shares := make([][]wire.Unit, n)
+		for i, u := range rep.Late {
+			shares[i%n] = append(shares[i%n], u)
+		}
+		p.drawBufs, p.drawWant = nil, 0
+		for k, sh := range shares {
+			if len(sh) > 0 {
+				p.pool.send(k, wire.Request{Op: wire.OpDrawUnits, Seq: p.seq, Late: sh}, nil, nil)
+				p.drawWant++
+			}
+		}
+		p.phase = wire.PhaseDrawing
+		p.phaseDone, p.phaseTotal = 0, len(rep.Late)
+	case wire.OpDrawn:
+		if len(bufs) == 1 {
+			p.drawBufs = append(p.drawBufs, bufs[0])
+		}
+		p.phaseDone += rep.Done
+		if len(p.drawBufs) == p.drawWant {
+			names := make([]string, len(p.drawBufs))
+			for i := range names {
+				names[i] = fmt.Sprintf("figure-units-%d", i)
+			}
+			p.pool.send(0, wire.Request{Op: wire.OpDraw, Seq: p.seq}, names, p.drawBufs)
 		}
 	case wire.OpResults:
 		markTime("amplink-results")

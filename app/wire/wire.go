@@ -15,6 +15,14 @@ const (
 	OpRun      = "run"      // plan, compute this worker's share; reply OpProgress…, OpUnits
 	OpFinish   = "finish"   // combine every worker's units (after OpRun); reply OpResults
 	OpPower    = "power"    // trial-averaged time-frequency power of one channel; reply OpPower
+
+	// When the figures need power maps that only the rows can choose,
+	// OpFinish replies OpLate instead of OpResults; the page spreads those
+	// units over its workers (OpDrawUnits, each replying OpDrawn with their
+	// results as a buffer) and hands every result back to the worker that
+	// combined (OpDraw), which draws the figures and replies OpResults.
+	OpDrawUnits = "drawunits" // compute Late figure units (after OpRun); reply OpDrawn
+	OpDraw      = "draw"      // draw the figures from every OpDrawn buffer (after OpLate); reply OpResults
 )
 
 // Replies a worker sends.
@@ -26,7 +34,18 @@ const (
 	OpResults  = "results" // bufs: results.json, the archive of every output, then each figure's SVG
 	OpError    = "error"
 	OpFatal    = "fatal" // the worker could not start
+	OpLate     = "late"  // combined; these figure units remain (Late)
+	OpDrawn    = "drawn" // bufs: the OpDrawUnits results (Done: how many)
 )
+
+// Unit is a unit of work as the page sees it: an id, its kind, the
+// channels it reads, and its relative cost.
+type Unit struct {
+	ID       int      `json:"id"`
+	Kind     string   `json:"kind"`
+	Channels []string `json:"channels"`
+	Cost     float64  `json:"cost"`
+}
 
 // Source says where a worker finds the recording.
 type Source struct {
@@ -65,6 +84,9 @@ type Request struct {
 	// OpPower: the channel to show.
 	Channel string `json:"channel,omitempty"`
 
+	// OpDrawUnits: the figure units this worker computes.
+	Late []Unit `json:"late,omitempty"`
+
 	// OpDescribe: what each file is (see all.Roles), in the order of the
 	// files sent. Empty with an empty Source.Name: the worker recognises
 	// each file by its content and replies with Roles and the Source.
@@ -93,6 +115,9 @@ type Reply struct {
 	Roles      []string `json:"roles,omitempty"`
 	Source     *Source  `json:"source,omitempty"`
 	RecipeText string   `json:"recipeText,omitempty"`
+
+	// OpLate: the figure units that remain to be computed.
+	Late []Unit `json:"late,omitempty"`
 
 	// OpPhase: the phase; with Done and Total when it counts.
 	Phase string `json:"phase,omitempty"`

@@ -1464,9 +1464,14 @@ func TestBrowser(t *testing.T) {
 		b.setField(t, "f-analyses-0-seed-channel", "C4")
 		// a new analysis, and a switched type, mark nothing the user has
 		// not typed in yet
+		before, _ := chromedp.Run(b.ctx, chromedp.Evaluate[int](`document.querySelectorAll(".analysis").length`))
 		b.click(t, "add-window")
-		n, _ := chromedp.Run(b.ctx, chromedp.Evaluate[int](`document.querySelectorAll(".analysis").length`))
-		last := fmt.Sprintf("f-analyses-%d-type", n-1)
+		// the new analysis and its fields are drawn after the click's task
+		last := fmt.Sprintf("f-analyses-%d-type", before)
+		if _, err := chromedp.Run(b.ctx, chromedp.Poll[bool](fmt.Sprintf(`document.querySelectorAll(".analysis").length === %d && !!document.getElementById(%q)`, before+1, last), chromedp.WithPollingTimeout(5*time.Second))); err != nil {
+			t.Fatalf("no analysis %d after Add: %v", before+1, err)
+		}
+		n := before + 1
 		b.setField(t, last, "comodulogram")
 		time.Sleep(300 * time.Millisecond)
 		if s := b.text(t, ".field.invalid .why"); s != "" {

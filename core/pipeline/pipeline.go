@@ -73,11 +73,25 @@ func (p *Plan) Compute(ctx context.Context, id int) (UnitResult, error) {
 // Finish turns every unit's result into the results table, maps and
 // figures.
 func (p *Plan) Finish(ctx context.Context, res []UnitResult) (*report.Results, error) {
+	out, ar, fr, err := p.Combine(ctx, res)
+	if err != nil {
+		return nil, err
+	}
+	if err := p.Figures.Draw(ctx, ar, fr, out); err != nil {
+		return nil, err
+	}
+	return out, nil
+}
+
+// Combine is Finish without the figures: the rows and maps, with the
+// analysis units' results (ar, by unit ID) and the figure units' (fr,
+// numbered as figures.Plan numbers them) apart, for figures.Plan.Draw, to
+// which results of figures.Plan.Late units may be added.
+func (p *Plan) Combine(ctx context.Context, res []UnitResult) (out *report.Results, ar, fr []UnitResult, err error) {
 	nf := len(p.Figures.Units())
 	if len(res) != p.na+nf {
-		return nil, fmt.Errorf("pipeline: %d unit results for %d units", len(res), p.na+nf)
+		return nil, nil, nil, fmt.Errorf("pipeline: %d unit results for %d units", len(res), p.na+nf)
 	}
-	var ar, fr []UnitResult
 	for _, r := range res {
 		if r.ID < p.na {
 			ar = append(ar, r)
@@ -86,19 +100,15 @@ func (p *Plan) Finish(ctx context.Context, res []UnitResult) (*report.Results, e
 			fr = append(fr, r)
 		}
 	}
-	out, err := p.Analysis.Finish(ctx, ar)
-	if err != nil {
-		return nil, err
+	if out, err = p.Analysis.Finish(ctx, ar); err != nil {
+		return nil, nil, nil, err
 	}
-	// Finish has checked and ordered ar; Draw reads it by unit ID
+	// Finish has checked ar; Draw reads it by unit ID
 	sorted := make([]UnitResult, len(ar))
 	for _, r := range ar {
 		sorted[r.ID] = r
 	}
-	if err := p.Figures.Draw(ctx, sorted, fr, out); err != nil {
-		return nil, err
-	}
-	return out, nil
+	return out, sorted, fr, nil
 }
 
 // ComputeAll computes every unit on the given number of goroutines.

@@ -36,10 +36,19 @@ type Worker struct {
 	// of one millisecond (the only call that yields under js/wasm).
 	Sleep func()
 
-	// kept between OpRun and OpFinish of the same Seq
+	// kept between OpRun and OpFinish (and OpDrawUnits) of the same Seq
 	plan *pipeline.Plan
 	seq  int
 	name string // the recording, for results.csv's recording column
+	// kept between OpLate and OpDraw: the combined results without figures
+	draw *pendingDraw
+}
+
+// pendingDraw is a combined run whose figures wait for their late units.
+type pendingDraw struct {
+	out     *report.Results
+	ar, fr  []pipeline.UnitResult
+	combine time.Duration
 }
 
 // Files are the files that came with a request, by file name: bytes
@@ -196,42 +205,55 @@ func (w *Worker) HandleFiles(ctx context.Context, req wire.Request, list []forma
 			fail(errors.New("worker: finish without a matching run"))
 			return
 		}
-		var all []pipeline.UnitResult
-		for i, f := range list {
-			b, err := io.ReadAll(io.NewSectionReader(f.R, 0, f.Size))
-			if err != nil {
-				fail(fmt.Errorf("worker: units from worker %d: %w", i, err))
-				return
-			}
-			u, err := DecodeUnits(b)
-			if err != nil {
-				fail(fmt.Errorf("worker: units from worker %d: %w", i, err))
-				return
-			}
-			all = append(all, u...)
+		all, err := decodeAll(list)
+		if err != nil {
+			fail(err)
+			return
 		}
 		post(wire.Reply{Op: wire.OpPhase, Seq: req.Seq, Phase: wire.PhaseCombining}, nil)
 		t0 := time.Now()
-		res, err := w.plan.Finish(ctx, all)
+		out, ar, fr, err := w.plan.Combine(ctx, all)
 		if err != nil {
 			fail(err)
 			return
 		}
-		AddRecording(res, w.name)
-		finish := time.Since(t0)
-		post(wire.Reply{Op: wire.OpPhase, Seq: req.Seq, Phase: wire.PhasePacking}, nil)
-		t1 := time.Now()
-		rep, out, err := ResultsReply(res)
+		w.draw = &pendingDraw{out: out, ar: ar, fr: fr, combine: time.Since(t0)}
+		if late := w.plan.Figures.Late(out); len(late) > 0 {
+			// the power maps chosen from the rows: the page spreads them
+			// over its workers (OpDrawUnits) and hands them back (OpDraw)
+			rep := wire.Reply{Op: wire.OpLate, Seq: req.Seq}
+			for _, u := range late {
+				rep.Late = append(rep.Late, wire.Unit{ID: u.ID, Kind: u.Kind, Channels: u.Channels, Cost: u.Cost})
+			}
+			post(rep, nil)
+			return
+		}
+		w.drawAndReply(ctx, req, nil, post)
+	case wire.OpDrawUnits:
+		if w.plan == nil || w.seq != req.Seq {
+			fail(errors.New("worker: figure units without a matching run"))
+			return
+		}
+		res, err := w.computeEach(ctx, len(req.Late), func(ctx context.Context, i int) (pipeline.UnitResult, error) {
+			u := req.Late[i]
+			return w.plan.Figures.ComputeUnit(ctx, pipeline.Unit{ID: u.ID, Kind: u.Kind, Channels: u.Channels, Cost: u.Cost})
+		}, func(int) {})
 		if err != nil {
 			fail(err)
 			return
 		}
-		rep.Seq = req.Seq
-		rep.Timings = []wire.Timing{
-			{Step: "combine (rows, maps, figures)", MS: ms(finish)},
-			{Step: "pack (csv, json, archive)", MS: ms(time.Since(t1))},
+		post(wire.Reply{Op: wire.OpDrawn, Seq: req.Seq, Done: len(res)}, [][]byte{EncodeUnits(res)})
+	case wire.OpDraw:
+		if w.plan == nil || w.seq != req.Seq || w.draw == nil {
+			fail(errors.New("worker: draw without a matching finish"))
+			return
 		}
-		post(rep, out)
+		late, err := decodeAll(list)
+		if err != nil {
+			fail(err)
+			return
+		}
+		w.drawAndReply(ctx, req, late, post)
 	case wire.OpPower:
 		fig, err := Power(req, files)
 		if err != nil {
@@ -335,6 +357,13 @@ func (w *Worker) planFor(req wire.Request, files Files) (*pipeline.Plan, error) 
 // compute runs the listed units in order, reporting the count done after
 // each, and yields to the event loop at least every YieldEvery.
 func (w *Worker) compute(ctx context.Context, p *pipeline.Plan, ids []int, total int, progress func(done int)) ([]pipeline.UnitResult, error) {
+	return w.computeEach(ctx, len(ids), func(ctx context.Context, i int) (pipeline.UnitResult, error) { return p.Compute(ctx, ids[i]) }, progress)
+}
+
+// computeEach runs one(ctx, i) for i = 0 … n−1 in order, reporting the
+// count done after each, and yields to the event loop at least every
+// YieldEvery.
+func (w *Worker) computeEach(ctx context.Context, n int, one func(ctx context.Context, i int) (pipeline.UnitResult, error), progress func(done int)) ([]pipeline.UnitResult, error) {
 	every := w.YieldEvery
 	if every <= 0 {
 		every = 50 * time.Millisecond
@@ -344,12 +373,12 @@ func (w *Worker) compute(ctx context.Context, p *pipeline.Plan, ids []int, total
 		sleep = func() { time.Sleep(time.Millisecond) }
 	}
 	last := time.Now()
-	out := make([]pipeline.UnitResult, 0, len(ids))
-	for i, id := range ids {
+	out := make([]pipeline.UnitResult, 0, n)
+	for i := range n {
 		if err := ctx.Err(); err != nil {
 			return nil, err
 		}
-		r, err := p.Compute(ctx, id)
+		r, err := one(ctx, i)
 		if err != nil {
 			return nil, err
 		}
@@ -501,4 +530,53 @@ func ResultsReply(res *report.Results) (wire.Reply, [][]byte, error) {
 		bufs = append(bufs, []byte(f.SVG))
 	}
 	return rep, bufs, nil
+}
+
+// decodeAll decodes every worker's unit buffer.
+func decodeAll(list []format.File) ([]pipeline.UnitResult, error) {
+	var all []pipeline.UnitResult
+	for i, f := range list {
+		b, err := io.ReadAll(io.NewSectionReader(f.R, 0, f.Size))
+		if err != nil {
+			return nil, fmt.Errorf("worker: units from worker %d: %w", i, err)
+		}
+		u, err := DecodeUnits(b)
+		if err != nil {
+			return nil, fmt.Errorf("worker: units from worker %d: %w", i, err)
+		}
+		all = append(all, u...)
+	}
+	return all, nil
+}
+
+// drawAndReply draws the figures of the combined run (with the late units'
+// results computed elsewhere; Draw computes any missing) and posts
+// OpResults.
+func (w *Worker) drawAndReply(ctx context.Context, req wire.Request, late []pipeline.UnitResult, post func(wire.Reply, [][]byte)) {
+	d := w.draw
+	w.draw = nil
+	fail := func(err error) { post(wire.Reply{Op: wire.OpError, Seq: req.Seq, Error: err.Error()}, nil) }
+	post(wire.Reply{Op: wire.OpPhase, Seq: req.Seq, Phase: wire.PhaseDrawing}, nil)
+	t0 := time.Now()
+	if err := w.plan.Figures.Draw(ctx, d.ar, append(d.fr, late...), d.out); err != nil {
+		fail(err)
+		return
+	}
+	res := d.out
+	AddRecording(res, w.name)
+	draw := time.Since(t0)
+	post(wire.Reply{Op: wire.OpPhase, Seq: req.Seq, Phase: wire.PhasePacking}, nil)
+	t1 := time.Now()
+	rep, out, err := ResultsReply(res)
+	if err != nil {
+		fail(err)
+		return
+	}
+	rep.Seq = req.Seq
+	rep.Timings = []wire.Timing{
+		{Step: "combine (rows, maps)", MS: ms(d.combine)},
+		{Step: "draw (figures)", MS: ms(draw)},
+		{Step: "pack (csv, json, archive)", MS: ms(time.Since(t1))},
+	}
+	post(rep, out)
 }

@@ -12,6 +12,7 @@ import (
 	"os"
 	"path/filepath"
 	"reflect"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -287,7 +288,7 @@ func TestSplitEqualsRun(t *testing.T) {
 					phases = append(phases, r.Phase)
 				}
 			}
-			if want := []string{wire.PhaseCombining, wire.PhasePacking}; !reflect.DeepEqual(phases, want) {
+			if want := []string{wire.PhaseCombining, wire.PhaseDrawing, wire.PhasePacking}; !reflect.DeepEqual(phases, want) {
 				t.Errorf("finish phases %v, want %v", phases, want)
 			}
 			for i, f := range res.Figures {
@@ -512,5 +513,99 @@ func TestPowerWindowsOnce(t *testing.T) {
 	}
 	if !strings.Contains(fig.SVG, "beta-to-delta seed, beta-to-delta-by-outcome seed") {
 		t.Error("coinciding windows are not labelled together")
+	}
+}
+
+// wideCSV is trialsCSV with three more channels (A, B, C: Pz with more
+// noise), so that a "*" target has more channels than get a power map
+// before the rows exist.
+func wideCSV() []byte {
+	lines := strings.Split(strings.TrimSpace(string(trialsCSV())), "\n")
+	var b strings.Builder
+	b.WriteString(lines[0] + ",A,B,C\n")
+	for i, l := range lines[1:] {
+		f := strings.Split(l, ",")
+		pz, _ := strconv.ParseFloat(f[3], 64)
+		fmt.Fprintf(&b, "%s,%.6f,%.6f,%.6f\n", l, pz+0.2*math.Sin(float64(i)), pz+0.4*math.Cos(float64(3*i)), 0.5*math.Sin(float64(7*i)))
+	}
+	return []byte(b.String())
+}
+
+// The power maps of the strongest rows (figures.Plan.Late) go out to the
+// workers after OpFinish (OpLate, OpDrawUnits) and come back to worker 0
+// (OpDraw): results and figures equal pipeline.Run's byte for byte, with
+// the maps computed on two workers.
+func TestLateFigureUnitsSpread(t *testing.T) {
+	data := wideCSV()
+	src := wire.Source{Name: "wide.csv"}
+	r, err := recipe.Parse([]byte(smallRecipe))
+	if err != nil {
+		t.Fatal(err)
+	}
+	ds, err := Open(r, src, Files{"wide.csv": format.Bytes("wide.csv", data)})
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := pipeline.Run(context.Background(), r, ds, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	AddRecording(res, "wide.csv")
+	var want bytes.Buffer
+	if err := report.WriteCSV(&want, res); err != nil {
+		t.Fatal(err)
+	}
+	workers := []*Worker{{}, {}}
+	var unitBufs [][]byte
+	for k, w := range workers {
+		var rp replies
+		w.Handle(context.Background(), wire.Request{Op: wire.OpRun, Seq: 6, Source: src, Recipe: []byte(smallRecipe), Worker: k, Workers: 2},
+			[]string{"wide.csv"}, [][]byte{append([]byte(nil), data...)}, rp.post)
+		_, bufs := rp.last(t, wire.OpUnits)
+		unitBufs = append(unitBufs, bufs[0])
+	}
+	var rp replies
+	workers[0].Handle(context.Background(), wire.Request{Op: wire.OpFinish, Seq: 6}, []string{"u0", "u1"}, unitBufs, rp.post)
+	late, _ := rp.last(t, wire.OpLate)
+	// the seed C4 has its map as a unit; of the targets' three strongest
+	// rows one is C4's own, so two maps are late
+	if len(late.Late) != 2 {
+		t.Fatalf("%d late units, want 2: %+v", len(late.Late), late.Late)
+	}
+	var drawn [][]byte
+	for k, w := range workers {
+		var mine []wire.Unit
+		for i, u := range late.Late {
+			if i%2 == k {
+				mine = append(mine, u)
+			}
+		}
+		var rp replies
+		w.Handle(context.Background(), wire.Request{Op: wire.OpDrawUnits, Seq: 6, Late: mine}, nil, nil, rp.post)
+		rep, bufs := rp.last(t, wire.OpDrawn)
+		if rep.Done != len(mine) {
+			t.Errorf("worker %d drew %d units, want %d", k, rep.Done, len(mine))
+		}
+		drawn = append(drawn, bufs[0])
+	}
+	rp = replies{}
+	workers[0].Handle(context.Background(), wire.Request{Op: wire.OpDraw, Seq: 6}, []string{"d0", "d1"}, drawn, rp.post)
+	rep, out := rp.last(t, wire.OpResults)
+	if rep.CSV != want.String() {
+		t.Fatalf("results.csv differs from pipeline.Run:\n%s\nwant\n%s", rep.CSV, want.String())
+	}
+	if len(rep.Figures) != len(res.Figures) {
+		t.Fatalf("%d figures, native %d", len(rep.Figures), len(res.Figures))
+	}
+	for i, f := range res.Figures {
+		if string(out[2+i]) != f.SVG || rep.Figures[i].Name != f.Name {
+			t.Errorf("figure %d (%s) differs from the native one", i, f.Name)
+		}
+	}
+	// a second draw has nothing to draw from
+	rp = replies{}
+	workers[0].Handle(context.Background(), wire.Request{Op: wire.OpDraw, Seq: 6}, nil, nil, rp.post)
+	if e, _ := rp.last(t, wire.OpError); !strings.Contains(e.Error, "draw without a matching finish") {
+		t.Errorf("second draw: %q", e.Error)
 	}
 }
