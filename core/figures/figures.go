@@ -153,10 +153,15 @@ func (p *Plan) Late(out *report.Results) []analysis.Unit {
 		return nil
 	}
 	d := &figDraw{p: p, ap: p.ap, out: out}
+	return p.lateUnits(d.lateChannels())
+}
+
+// lateUnits are the units of Late for the channels lateChannels chose.
+func (p *Plan) lateUnits(chans []int) []analysis.Unit {
 	e := p.ap.Dataset().Epochs
 	all := p.allFreqs()
 	var units []analysis.Unit
-	for _, ch := range d.lateChannels() {
+	for _, ch := range chans {
 		units = append(units, analysis.Unit{ID: len(p.units) + len(units), Kind: KindPower, Channels: []string{e.Channels[ch].Name},
 			Cost: float64(e.NTrials * (e.NSamples + p.ap.Bank().MaxHalf(all)) * (1 + len(all)))})
 	}
@@ -195,10 +200,11 @@ func (p *Plan) Draw(ctx context.Context, res, figRes []analysis.UnitResult, out 
 	if !p.ap.Recipe().Figures.Enabled {
 		return nil
 	}
-	late := p.Late(out)
 	early := make([]analysis.UnitResult, len(p.units))
-	seen := make([]bool, len(p.units)+len(late))
 	d := &figDraw{p: p, ap: p.ap, ctx: ctx, res: res, figRes: early, out: out, names: map[string]int{}, power: map[int][][]float64{}}
+	lateCh := d.lateChannels()
+	late := p.lateUnits(lateCh)
+	seen := make([]bool, len(p.units)+len(late))
 	for _, r := range figRes {
 		if r.ID < 0 || r.ID >= len(seen) || seen[r.ID] {
 			return fmt.Errorf("figures: unit result %d is out of range or repeated", r.ID)
@@ -219,7 +225,7 @@ func (p *Plan) Draw(ctx context.Context, res, figRes []analysis.UnitResult, out 
 			return fmt.Errorf("figures: no result for unit %d", id)
 		}
 	}
-	if err := d.prefetch(); err != nil {
+	if err := d.prefetch(lateCh); err != nil {
 		return err
 	}
 	for i := range p.ap.Recipe().Analyses {

@@ -179,11 +179,11 @@ func (d *figDraw) lateChannels() []int {
 	return need
 }
 
-// prefetch computes, in parallel, the late power maps whose results Draw
-// was not given.
-func (d *figDraw) prefetch() error {
+// prefetch computes, in parallel, the late power maps (of the channels
+// lateChannels chose) whose results Draw was not given.
+func (d *figDraw) prefetch(late []int) error {
 	var need []int
-	for _, c := range d.lateChannels() {
+	for _, c := range late {
 		if _, ok := d.power[c]; !ok {
 			need = append(need, c)
 		}

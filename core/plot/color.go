@@ -130,10 +130,8 @@ func ParseHex(s string) (c RGB, ok bool) {
 // physiologically-based model for simulation of color vision deficiency",
 // IEEE TVCG 15(6):1291–1298, the severity-1.0 rows of their table of
 // protanomaly and deuteranomaly matrices (full protanopia and
-// deuteranopia), applied to linear RGB. Each row sums to 1, so white maps
-// to white. Checked against a transcription of the whole table (severities
-// 0.1–1.0) in GarrettGunnell/AcerolaFX, Shaders/Includes/
-// AcerolaFX_ColorBlindness.fxh, which gives the same six digits.
+// deuteranopia), applied to linear RGB, to the six digits the table gives.
+// Each row sums to 1, so white maps to white.
 var (
 	machadoDeutan = [3][3]float64{
 		{0.367322, 0.860646, -0.227968},

@@ -74,6 +74,16 @@ func (f Files) Open(name string) (format.File, error) {
 	return file, nil
 }
 
+// need returns the file named name, or an error saying that the page sent
+// no bytes for it.
+func (f Files) need(name string) (format.File, error) {
+	file, ok := f[name]
+	if !ok {
+		return format.File{}, fmt.Errorf("worker: no bytes for %q", name)
+	}
+	return file, nil
+}
+
 // only returns the one file whose name ends in suffix (any case).
 func (f Files) only(suffix string) (format.File, bool) {
 	var found []format.File
@@ -398,15 +408,15 @@ func Open(r *recipe.Recipe, src wire.Source, files Files) (*dataset.Dataset, err
 	if src.Demo {
 		return demoDataset(r)
 	}
-	f, ok := files[src.Name]
-	if !ok {
-		return nil, fmt.Errorf("worker: no bytes for %q", src.Name)
+	f, err := files.need(src.Name)
+	if err != nil {
+		return nil, err
 	}
 	var ev *format.File
 	if src.EventsName != "" {
-		e, ok := files[src.EventsName]
-		if !ok {
-			return nil, fmt.Errorf("worker: no bytes for %q", src.EventsName)
+		e, err := files.need(src.EventsName)
+		if err != nil {
+			return nil, err
 		}
 		ev = &e
 	}
@@ -419,19 +429,18 @@ func Open(r *recipe.Recipe, src wire.Source, files Files) (*dataset.Dataset, err
 	}
 	stem := dataset.Stem(src.Name)
 	if src.ChannelsName != "" {
-		c, ok := files[src.ChannelsName]
-		if !ok {
-			return nil, fmt.Errorf("worker: no bytes for %q", src.ChannelsName)
+		c, err := files.need(src.ChannelsName)
+		if err != nil {
+			return nil, err
 		}
 		delete(sib, src.ChannelsName)
-		c.Name = src.ChannelsName
 		sib[stem+"_channels.tsv"] = c
 	}
 	var trials *format.File
 	if src.TrialsName != "" {
-		t, ok := files[src.TrialsName]
-		if !ok {
-			return nil, fmt.Errorf("worker: no bytes for %q", src.TrialsName)
+		t, err := files.need(src.TrialsName)
+		if err != nil {
+			return nil, err
 		}
 		trials = &t
 		delete(sib, src.TrialsName)
