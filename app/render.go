@@ -169,16 +169,17 @@ func (p *Page) renderLoad() goapp.UI {
 
 // roleWords say what each role means in the file list.
 var roleWords = map[string]string{
-	"recording": "the recording",
-	"events":    "events table",
-	"channels":  "channels table",
-	"trials":    "trials table (per-trial values)",
-	"recipe":    "recipe (settings)",
-	"sidecar":   "description beside the recording",
-	"unknown":   "not recognised (not used)",
+	"recording":  "the recording",
+	"events":     "events table",
+	"channels":   "channels table",
+	"trials":     "trials table (per-trial values)",
+	"electrodes": "electrode positions",
+	"recipe":     "recipe (settings)",
+	"sidecar":    "description beside the recording",
+	"unknown":    "not recognised (not used)",
 }
 
-var roleChoices = []string{"recording", "events", "channels", "trials", "recipe", "sidecar", "unknown"}
+var roleChoices = []string{"recording", "events", "channels", "trials", "electrodes", "recipe", "sidecar", "unknown"}
 
 // renderFiles lists the files given together and what each was taken as,
 // with a chooser to correct a wrong guess.

@@ -53,9 +53,11 @@ type Source struct {
 	Name       string `json:"name,omitempty"`       // file name of the data bytes
 	EventsName string `json:"eventsName,omitempty"` // file name of the events bytes, if any
 	// the companions the page recognised by their content, whatever their
-	// names: a trials table (trial,<name>...) and a channels table
-	TrialsName   string `json:"trialsName,omitempty"`
-	ChannelsName string `json:"channelsName,omitempty"`
+	// names: a trials table (trial,<name>...), a channels table and an
+	// electrodes table
+	TrialsName     string `json:"trialsName,omitempty"`
+	ChannelsName   string `json:"channelsName,omitempty"`
+	ElectrodesName string `json:"electrodesName,omitempty"` // a BIDS electrodes table
 }
 
 // Phases of a run, as OpPhase replies report them.

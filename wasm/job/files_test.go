@@ -5,6 +5,7 @@ import (
 	"testing"
 
 	"amplink/core/format"
+	"amplink/core/format/all"
 )
 
 // A picked electrodes.tsv under any name serves as the recording's
@@ -25,5 +26,29 @@ func TestFilesElectrodesFallback(t *testing.T) {
 	fs["other_electrodes.tsv"] = format.Bytes("other_electrodes.tsv", nil)
 	if _, err := fs.Open("rec_electrodes.tsv"); !errors.Is(err, format.ErrNoSibling) {
 		t.Errorf("two electrodes files: %v", err)
+	}
+}
+
+// An electrodes table is recognised by its columns whatever its name, and
+// serves as the recording's positions, as a channels table serves as its
+// channels.
+func TestElectrodesByContent(t *testing.T) {
+	pos := format.Bytes("positions.tsv", []byte("name\tx\ty\tz\nC4\t0.71\t0\t0.71\nPz\t0\t-0.71\t0.71\n"))
+	rec := format.Bytes("trials.csv", trialsCSV())
+	list := []format.File{rec, pos}
+	roles := Recognise(list)
+	if roles[1] != string(all.Electrodes) {
+		t.Fatalf("positions.tsv taken as %s", roles[1])
+	}
+	src, _, err := SourceFor(list, roles)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ds, err := Open(nil, src, Files{"trials.csv": rec, "positions.tsv": pos})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if ds.Electrodes == nil || ds.Electrodes.File != "positions.tsv" {
+		t.Errorf("positions from %+v, want positions.tsv", ds.Electrodes)
 	}
 }

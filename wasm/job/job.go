@@ -312,6 +312,8 @@ func SourceFor(files []format.File, roles []string) (wire.Source, *format.File, 
 			src.ChannelsName = f.Name
 		case all.Trials:
 			src.TrialsName = f.Name
+		case all.Electrodes:
+			src.ElectrodesName = f.Name
 		case all.Recipe:
 			rf = &files[i]
 		}
@@ -421,7 +423,8 @@ func Open(r *recipe.Recipe, src wire.Source, files Files) (*dataset.Dataset, err
 		ev = &e
 	}
 	// companions recognised by their content are seen under the names the
-	// core looks for beside the recording (<stem>_channels.tsv); a trials
+	// core looks for beside the recording (<stem>_channels.tsv,
+	// <stem>_electrodes.tsv); a trials
 	// table is attached as `amplink run --trials` attaches one
 	sib := Files{}
 	for k, v := range files {
@@ -435,6 +438,14 @@ func Open(r *recipe.Recipe, src wire.Source, files Files) (*dataset.Dataset, err
 		}
 		delete(sib, src.ChannelsName)
 		sib[stem+"_channels.tsv"] = c
+	}
+	if src.ElectrodesName != "" {
+		el, err := files.need(src.ElectrodesName)
+		if err != nil {
+			return nil, err
+		}
+		delete(sib, src.ElectrodesName)
+		sib[stem+"_electrodes.tsv"] = el
 	}
 	var trials *format.File
 	if src.TrialsName != "" {

@@ -14,17 +14,18 @@ type Role string
 
 // The roles Recognise tells apart.
 const (
-	Recording Role = "recording" // samples: any registered format
-	Events    Role = "events"    // a BIDS events table (onset, duration, ...)
-	Channels  Role = "channels"  // a BIDS channels table (name, type, units, ...)
-	Trials    Role = "trials"    // per-trial values: trial,<name>...
-	Recipe    Role = "recipe"    // an analysis recipe (JSON with "analyses")
-	Sidecar   Role = "sidecar"   // other JSON, such as the float32 epochs' description
-	Unknown   Role = "unknown"
+	Recording  Role = "recording"  // samples: any registered format
+	Events     Role = "events"     // a BIDS events table (onset, duration, ...)
+	Channels   Role = "channels"   // a BIDS channels table (name, type, units, ...)
+	Trials     Role = "trials"     // per-trial values: trial,<name>...
+	Electrodes Role = "electrodes" // a BIDS electrodes table (name, x, y, z)
+	Recipe     Role = "recipe"     // an analysis recipe (JSON with "analyses")
+	Sidecar    Role = "sidecar"    // other JSON, such as the float32 epochs' description
+	Unknown    Role = "unknown"
 )
 
 // Roles lists every role, for a chooser.
-var Roles = []Role{Recording, Events, Channels, Trials, Recipe, Sidecar}
+var Roles = []Role{Recording, Events, Channels, Trials, Electrodes, Recipe, Sidecar}
 
 // Recognise says what a file is from its first bytes (at least the first
 // line; for JSON, as much as is at hand), whatever its name. Binary formats
@@ -32,7 +33,8 @@ var Roles = []Role{Recording, Events, Channels, Trials, Recipe, Sidecar}
 // JSON by its first character; delimited text by its header, the way the
 // readers check it: trial,time,... and time,... are recordings (csv.Decode),
 // trial,<name>... a trials table (csv.DecodeTrials), onset,... events and
-// name,type,... channels (bids.ReadEvents, bids.ReadChannels).
+// name,type,... channels and name,x,y,z electrodes (bids.ReadEvents,
+// bids.ReadChannels, bids.ReadElectrodes).
 func Recognise(head []byte, name string) Role {
 	trim := bytes.TrimLeft(bytes.TrimPrefix(head, []byte("\xef\xbb\xbf")), " \t\r\n")
 	if len(trim) > 0 && trim[0] == '{' {
@@ -69,6 +71,8 @@ func Recognise(head []byte, name string) Role {
 		return Trials
 	case has("onset"):
 		return Events
+	case has("name") && has("x") && has("y") && has("z"):
+		return Electrodes
 	case has("name") && (has("type") || has("units")):
 		return Channels
 	}

@@ -21,6 +21,7 @@ func TestRecognise(t *testing.T) {
 		{"session.tsv", "onset\tduration\ttrial_type\n1.0\t0\ttone\n", Events},
 		{"ev.csv", "onset\tduration\n", Events},
 		{"chans.txt", "name\ttype\tunits\tstatus\nFz\tEEG\tuV\tgood\n", Channels},
+		{"positions.tsv", "name\tx\ty\tz\tmaterial\nFz\t0\t0.71\t0.71\tAg\n", Electrodes},
 		{"r.txt", "{\n  \"epochs\": {}, \"analyses\": []}", Recipe},
 		{"meta.json", "{\"sampleRate\": 250, \"channels\": [\"Fz\"]}", Sidecar},
 		{"x.bin", "hello world\n", Unknown},
