@@ -1,7 +1,7 @@
 // Command amplink-workload writes the standard performance workloads of
 // amplink to a directory. It is a tool for measurements, not part of CI.
 //
-//	amplink-workload --out DIR [--trials N] [--seed S] [--long] [--envelope]
+//	amplink-workload --out DIR [--trials N] [--seed S] [--long [--minutes M] [--channels N] [--name STEM]] [--envelope]
 //
 // Always written: DIR/workload.f32 and its sidecar DIR/workload.json
 // (32 channels × 200 trials × 2.5 s at 500 Hz, float32), DIR/recipe.json
@@ -14,7 +14,9 @@
 // correlation, envelopes at 10 Hz).
 //
 // --long adds DIR/long.edf (1 hour, 64 channels, 1 kHz, EDF+C) and
-// DIR/long-recipe.json (the same analysis).
+// DIR/long-recipe.json (the same analysis). --minutes and --channels
+// change its length and channel count (crops for memory measurements:
+// --minutes 10, 30, 600), and --name its file stem.
 package main
 
 import (
@@ -50,6 +52,9 @@ func run(stdout, stderr io.Writer, args []string) error {
 	seed := fs.Uint64("seed", 1, "generator seed")
 	long := fs.Bool("long", false, "also write the 1-hour 64-channel 1 kHz EDF+ and its recipe")
 	env := fs.Bool("envelope", false, "also write the 10-minute 32-channel 500 Hz EDF+ and its recipe")
+	minutes := fs.Float64("minutes", 60, "with --long: the recording's length in minutes")
+	nch := fs.Int("channels", 64, "with --long: the number of channels")
+	name := fs.String("name", "long", "with --long: the file stem (STEM.edf, STEM-recipe.json)")
 	if err := fs.Parse(args); err != nil {
 		return err
 	}
@@ -58,6 +63,15 @@ func run(stdout, stderr io.Writer, args []string) error {
 	}
 	if fs.NArg() > 0 {
 		return fmt.Errorf("unexpected argument %q", fs.Arg(0))
+	}
+	if !(*minutes > 0 && *minutes <= 24*60) {
+		return fmt.Errorf("--minutes %g: need more than 0 and at most 1440", *minutes)
+	}
+	if *nch < 2 || *nch > 512 {
+		return fmt.Errorf("--channels %d: need 2 to 512", *nch)
+	}
+	if *name == "" || filepath.Base(*name) != *name {
+		return fmt.Errorf("--name %q: need a plain file stem", *name)
 	}
 	if *trials < 3 {
 		return fmt.Errorf("--trials %d: need at least 3", *trials)
@@ -84,7 +98,7 @@ func run(stdout, stderr io.Writer, args []string) error {
 		}
 	}
 	if *long {
-		if err := writeContinuous(stdout, *out, "long", 64, 1000, 3600, *seed); err != nil {
+		if err := writeContinuous(stdout, *out, *name, *nch, 1000, *minutes*60, *seed); err != nil {
 			return err
 		}
 	}

@@ -60,7 +60,7 @@ func cmdRun(stdout, stderr io.Writer, args []string) (err error) {
 	workers := fs.Int("workers", 0, "parallel workers (0: one per core)")
 	groupsPath := fs.String("groups", "", "with several recordings: a CSV recording,group naming two groups to compare")
 	level := fs.Float64("level", 0.95, "confidence level of the group intervals")
-	maxMemory := fs.String("max-memory", defaultMaxMemory, "the most float32 samples one recording or its epochs may hold, e.g. 4GiB")
+	maxMemory := fs.String("max-memory", defaultMaxMemory, "the most float32 samples one recording or its epochs may hold (an EDF or BDF recording stays in its file: its epochs count, and for envelope analyses a chunk and the kept envelopes), e.g. 4GiB")
 	var sf studyFlags
 	sf.register(fs)
 	files, err := parseInterleaved(fs, args)
@@ -87,9 +87,9 @@ func cmdRun(stdout, stderr io.Writer, args []string) (err error) {
 	// they allocate (data.CheckSamples).
 	defer func(v int64) { data.MaxSampleBytes = v }(data.MaxSampleBytes)
 	data.MaxSampleBytes = budget
-	// The decoded recording is most of the live heap and stays until the
-	// end; collecting at 30 % growth instead of 100 % keeps the peak close to
-	// the samples themselves on long recordings.
+	// A decoded recording (or epochs) is most of the live heap and stays
+	// until the end; collecting at 30 % growth instead of 100 % keeps the
+	// peak close to the samples themselves on long recordings.
 	defer debug.SetGCPercent(debug.SetGCPercent(30))
 	rb, err := readRegular(*recipePath)
 	if err != nil {

@@ -9,6 +9,7 @@ import (
 	"amplink/core/analysis/connect"
 	"amplink/core/data"
 	"amplink/core/report"
+	"amplink/core/spectral"
 	"amplink/core/stats"
 )
 
@@ -32,6 +33,41 @@ func (s envSource) samples(seg, ch int) []float32 {
 		return s.ep.Trial(seg, ch)
 	}
 	return s.rec.Samples[ch]
+}
+
+// cropped returns the samples of one channel of segment seg that output
+// samples [from, to) need, [lo, hi) with the margins (spectral.Crop), and
+// lo: a view of the held samples, or read from a streamed recording.
+func (s envSource) cropped(seg, ch, from, to int) ([]float32, int, error) {
+	if !s.streamed() {
+		x := s.samples(seg, ch)
+		lo, hi := spectral.Crop(len(x), from, to, s.margin)
+		return x[lo:hi], lo, nil
+	}
+	lo, hi := spectral.Crop(s.rec.Len(), from, to, s.margin)
+	b, err := s.block([]int{ch}, lo, hi)
+	if err != nil {
+		return nil, 0, err
+	}
+	return b[0], lo, nil
+}
+
+// streamed reports whether the recording's samples are read a chunk at a
+// time (data.Recording.Source) rather than held.
+func (s envSource) streamed() bool { return s.ep == nil && s.rec.Streamed() }
+
+// block reads samples [lo, hi) of the listed channels of a streamed
+// recording: what one continuous unit holds.
+func (s envSource) block(chans []int, lo, hi int) ([][]float32, error) {
+	buf := make([]float32, len(chans)*(hi-lo))
+	dst := make([][]float32, len(chans))
+	for i := range dst {
+		dst[i] = buf[i*(hi-lo) : (i+1)*(hi-lo) : (i+1)*(hi-lo)]
+	}
+	if err := s.rec.Block(dst, chans, lo); err != nil {
+		return nil, err
+	}
+	return dst, nil
 }
 
 // envPlan is an envelope or comodulogram analysis.
@@ -226,7 +262,36 @@ func (p *Plan) planEnvelope(path string, a *Analysis) (finisher, error) {
 			return nil, ferr(path+".envelopeRate", "keeping %d envelope series of %d samples needs %d MB; set envelopeRate (for example 20 Hz) to bin the envelopes", ep.storedSeries(), total, v*8>>20)
 		}
 	}
+	if ep.src.streamed() {
+		if err := ep.checkHeld(total); err != nil {
+			return nil, err
+		}
+	}
 	return ep, nil
+}
+
+// checkHeld applies the sample budget (data.CheckSamples) to what a
+// streamed analysis holds: the samples of its longest unit with their
+// margins, and the stored series and band signals that the rows and
+// surrogates need, counted in float32 samples (a float64 is two). The
+// recording itself is not held, so its length counts only through these.
+func (ep *envPlan) checkHeld(total int) error {
+	block := 0
+	for _, sp := range ep.uspans {
+		lo, hi := spectral.Crop(ep.src.rec.Len(), sp[0], sp[1], ep.src.margin)
+		block = max(block, hi-lo)
+	}
+	held := int64(len(ep.unitChannels())) * int64(block)
+	if ep.store {
+		held += 2 * int64(ep.storedSeries()) * int64(total)
+	}
+	if ep.storeZ {
+		held += 4 * int64(len(ep.chans)) * int64(total) * int64(ep.bin)
+	}
+	if err := data.CheckSamples(held); err != nil {
+		return fmt.Errorf("%s: %s is read a chunk at a time, but a chunk of %d channels × %d samples and the series kept for the rows: %w", ep.path, ep.src.rec.Name, len(ep.unitChannels()), block, err)
+	}
+	return nil
 }
 
 // layout fixes the series and the terms.

@@ -19,7 +19,34 @@ func (ep *envPlan) compute(ctx context.Context, p *Plan, seg int, span [2]int) (
 	n := len(ep.chans)
 	var za, zb [][]complex128
 	convs := map[int]*spectral.Convolver{}
+	// A streamed recording: the unit's span with its margins, read once
+	// for every channel it uses; x then stands for the whole channel, of
+	// which only [off, off+len(block)) is there.
+	var held map[int][]float32
+	off := 0
+	if ep.src.streamed() {
+		lo, hi := spectral.Crop(ep.src.rec.Len(), span[0], span[1], ep.src.margin)
+		chs := ep.unitChannels()
+		b, err := ep.src.block(chs, lo, hi)
+		if err != nil {
+			return nil, err
+		}
+		held, off = make(map[int][]float32, len(chs)), lo
+		for i, c := range chs {
+			held[c] = b[i]
+		}
+	}
 	band := func(ch int, freqs []int) []complex128 {
+		if held != nil {
+			x := held[ch]
+			c := convs[0]
+			if c == nil {
+				c = p.bank.NewConvolver(spectral.GoodSize(len(x) + 2*ep.src.margin))
+				convs[0] = c
+			}
+			c.Load(x)
+			return connect.BandSignal(nil, c, freqs, span[0]-off, span[1]-off)
+		}
 		x := ep.src.samples(seg, ch)
 		lo, hi := spectral.Crop(len(x), span[0], span[1], ep.src.margin)
 		nfft := spectral.GoodSize(hi - lo + 2*ep.src.margin)
@@ -100,6 +127,19 @@ func (ep *envPlan) compute(ctx context.Context, p *Plan, seg int, span [2]int) (
 		}
 	}
 	return out, nil
+}
+
+// unitChannels lists the channels a unit's band signals come from, in the
+// order compute uses them.
+func (ep *envPlan) unitChannels() []int {
+	if ep.como {
+		first, last := ep.chans[0], ep.chans[len(ep.chans)-1]
+		if first == last {
+			return []int{first}
+		}
+		return []int{first, last}
+	}
+	return ep.chans
 }
 
 // symmetric replaces the band signals by their closest orthogonal set

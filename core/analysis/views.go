@@ -209,24 +209,32 @@ func (v EnvelopeView) Trace(ctx context.Context, seconds float64) (*Trace, error
 	}
 	ci, cj := ep.chans[pr.i], ep.chans[pr.j]
 	convs := map[int]*spectral.Convolver{}
-	band := func(ch int, freqs []int) []complex128 {
-		x := ep.src.samples(seg, ch)
-		lo, hi := spectral.Crop(len(x), from, to, h)
-		nfft := spectral.GoodSize(hi - lo + 2*h)
+	band := func(ch int, freqs []int) ([]complex128, error) {
+		x, lo, err := ep.src.cropped(seg, ch, from, to)
+		if err != nil {
+			return nil, err
+		}
+		nfft := spectral.GoodSize(len(x) + 2*h)
 		c := convs[nfft]
 		if c == nil {
 			c = v.p.bank.NewConvolver(nfft)
 			convs[nfft] = c
 		}
-		c.Load(x[lo:hi])
-		return connect.BandSignal(nil, c, freqs, from-lo, to-lo)
+		c.Load(x)
+		return connect.BandSignal(nil, c, freqs, from-lo, to-lo), nil
 	}
-	za := band(ci, ep.fa)
+	za, err := band(ci, ep.fa)
+	if err != nil {
+		return nil, err
+	}
 	fbIdx := ep.fa
 	if ep.fb != nil {
 		fbIdx = ep.fb
 	}
-	zb := band(cj, fbIdx)
+	zb, err := band(cj, fbIdx)
+	if err != nil {
+		return nil, err
+	}
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}

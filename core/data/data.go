@@ -23,7 +23,9 @@ type Event struct {
 	Extra    map[string]string // further columns (covariates, conditions); may be nil
 }
 
-// Recording is continuous data: Samples[c] holds channel c.
+// Recording is continuous data: Samples[c] holds channel c. A streamed
+// recording (a reader's Open) has no Samples: N samples per channel are
+// read on demand from Source (stream.go).
 type Recording struct {
 	Name     string // file name, used in messages
 	Format   string // detected format name
@@ -31,6 +33,8 @@ type Recording struct {
 	Start    float64 // time of sample 0, in seconds
 	Channels []Channel
 	Samples  [][]float32
+	Source   Source // streamed: where the samples are read; nil when they are held
+	N        int    // streamed: samples per channel
 	Events   []Event
 	Notes    []string // what the reader set aside or changed, for the user
 }
@@ -94,14 +98,17 @@ func (e *Epochs) Validate() error {
 
 // Duration returns the length of the recording in seconds.
 func (r *Recording) Duration() float64 {
-	if len(r.Samples) == 0 || r.Rate <= 0 {
+	if r.Rate <= 0 {
 		return 0
 	}
-	return float64(len(r.Samples[0])) / r.Rate
+	return float64(r.Len()) / r.Rate
 }
 
 // Len returns the number of samples per channel.
 func (r *Recording) Len() int {
+	if r.Streamed() {
+		return r.N
+	}
 	if len(r.Samples) == 0 {
 		return 0
 	}

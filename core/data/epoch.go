@@ -24,7 +24,7 @@ func Epoch(r *Recording, events []Event, eventType string, start, end float64) (
 	if !(end > start) {
 		return nil, fmt.Errorf("epochs: end %g s is not after start %g s", end, start)
 	}
-	if r.Rate <= 0 || len(r.Samples) == 0 {
+	if r.Rate <= 0 || len(r.Samples) == 0 && !(r.Streamed() && len(r.Channels) > 0) {
 		return nil, fmt.Errorf("epochs: %s: recording has no samples", r.Name)
 	}
 	s0 := int(math.Round(start * r.Rate))
@@ -71,7 +71,25 @@ func Epoch(r *Recording, events []Event, eventType string, start, end float64) (
 	ep.Name, ep.Format = r.Name, r.Format
 	ep.TrialInfo = keep
 	ep.Notes = append(ep.Notes, r.Notes...)
+	var dst [][]float32
+	var all []int
+	if r.Streamed() {
+		dst, all = make([][]float32, len(r.Channels)), make([]int, len(r.Channels))
+		for c := range all {
+			all[c] = c
+		}
+	}
 	for t, e := range onsets {
+		if r.Streamed() {
+			// one read of every channel per epoch
+			for c := range dst {
+				dst[c] = ep.Trial(t, c)
+			}
+			if err := r.Source.Read(dst, all, e+s0); err != nil {
+				return nil, err
+			}
+			continue
+		}
 		for c := range r.Channels {
 			copy(ep.Trial(t, c), r.Samples[c][e+s0:e+s1+1])
 		}

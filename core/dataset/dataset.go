@@ -39,11 +39,18 @@ type Dataset struct {
 // "<stem>_trials.tsv" (trial,<name>...) adds per-trial
 // values for covariates and conditions, matched by trial id (after
 // epoching, the 1-based number of the kept epoch).
+//
+// A continuous recording in a format that streams (format.Open) is not
+// held: its samples are read from f when they are needed, so f must stay
+// readable while the dataset is used.
 func Open(r *recipe.Recipe, f format.File, events *format.File, sib format.Siblings) (*Dataset, error) {
 	if sib == nil {
 		sib = format.NoSiblings{}
 	}
-	d, err := format.Decode(f, sib)
+	// Continuous formats that can stream (EDF, BDF, …) keep their samples
+	// in f: the envelope analyses read them a chunk at a time, and epoching
+	// reads each epoch.
+	d, err := format.Open(f, sib)
 	if err != nil {
 		return nil, err
 	}
@@ -197,15 +204,13 @@ func applyChannels(d *format.Data, chans []data.Channel, infos []bids.ChannelInf
 	}
 	if d.Recording != nil {
 		rec := d.Recording
-		var cs []data.Channel
-		var ss [][]float32
+		var keep []int
 		for i := range rec.Channels {
 			if !drop[i] {
-				cs = append(cs, rec.Channels[i])
-				ss = append(ss, rec.Samples[i])
+				keep = append(keep, i)
 			}
 		}
-		rec.Channels, rec.Samples = cs, ss
+		rec.Keep(keep)
 	} else {
 		e := d.Epochs
 		var keep []int

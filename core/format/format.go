@@ -65,6 +65,10 @@ type Format struct {
 	// bytes and the name.
 	Match  func(head []byte, name string) bool
 	Decode func(f File, sib Siblings) (*Data, error)
+	// Open, if set, reads a continuous format without its samples: the
+	// Recording it returns is streamed (data.Recording.Source) and reads
+	// them from f on demand. Decode is used where Open is nil.
+	Open func(f File, sib Siblings) (*Data, error)
 	// Fallback formats are tried last (CSV/TSV text).
 	Fallback bool
 }
@@ -148,6 +152,18 @@ var ErrUnknown = errors.New("unknown format")
 
 // Decode detects the format of f and decodes it.
 func Decode(f File, sib Siblings) (*Data, error) {
+	return decode(f, sib, false)
+}
+
+// Open detects the format of f and opens it streamed where the format can
+// (Format.Open), so that a continuous recording's samples stay in f until
+// they are read; other formats are decoded whole, as Decode does. f must
+// stay readable while the data are used.
+func Open(f File, sib Siblings) (*Data, error) {
+	return decode(f, sib, true)
+}
+
+func decode(f File, sib Siblings, stream bool) (*Data, error) {
 	if sib == nil {
 		sib = NoSiblings{}
 	}
@@ -166,7 +182,11 @@ func Decode(f File, sib Siblings) (*Data, error) {
 	if !ok {
 		return nil, fmt.Errorf("%s: %w (formats: %s)", f.Name, ErrUnknown, strings.Join(Names(), ", "))
 	}
-	d, err := ft.Decode(f, sib)
+	dec := ft.Decode
+	if stream && ft.Open != nil {
+		dec = ft.Open
+	}
+	d, err := dec(f, sib)
 	if err != nil {
 		return nil, err
 	}

@@ -11,8 +11,8 @@ import (
 )
 
 func init() {
-	format.Register(format.Format{Name: "edf", Magic: magicEDF, Ext: []string{".edf"}, Decode: decodeData})
-	format.Register(format.Format{Name: "bdf", Magic: magicBDF, Ext: []string{".bdf"}, Decode: decodeData})
+	format.Register(format.Format{Name: "edf", Magic: magicEDF, Ext: []string{".edf"}, Decode: decodeData, Open: openData})
+	format.Register(format.Format{Name: "bdf", Magic: magicBDF, Ext: []string{".bdf"}, Decode: decodeData, Open: openData})
 }
 
 func decodeData(f format.File, _ format.Siblings) (*format.Data, error) {
@@ -55,10 +55,45 @@ const chunkBytes = 256 << 10
 //
 // Bytes after the last whole data record are ignored, with a note.
 func Decode(f format.File) (*data.Recording, *Header, error) {
+	d, err := prepare(f)
+	if err != nil {
+		return nil, nil, err
+	}
+	// Allocate the samples: bounded by the file size (≥ 2 bytes per sample)
+	// and by data.MaxSampleBytes where that is set.
+	h, rec := d.h, d.rec
+	total := h.Records * int64(d.spr)
+	if err := data.CheckSamples(int64(len(d.kept)) * total); err != nil {
+		return nil, nil, d.p.errf(h.HeaderBytes, "data records", data.ErrTooLarge, "%d signals × %d samples: %v", len(d.kept), total, err)
+	}
+	rec.Samples = make([][]float32, len(d.kept))
+	for i := range d.kept {
+		rec.Samples[i] = make([]float32, total)
+	}
+	if err := d.scan(true); err != nil {
+		return nil, nil, err
+	}
+	return rec, h, nil
+}
+
+// decoding is a file on its way to a Recording: the header, the signals
+// kept and the annotation signals.
+type decoding struct {
+	p         *parser
+	h         *Header
+	rec       *data.Recording
+	spr       int   // samples per record of the kept signals
+	maxSPR    int   // the most samples per record of any signal
+	kept, ann []int // signal indices
+}
+
+// prepare reads the header and chooses the signals (Decode's rules); the
+// recording it starts has no samples yet.
+func prepare(f format.File) (*decoding, error) {
 	p := &parser{f: f, name: "edf"}
 	h, err := p.header()
 	if err != nil {
-		return nil, nil, err
+		return nil, err
 	}
 	// Pick the analysis rate.
 	count := map[int]int{}
@@ -70,7 +105,7 @@ func Decode(f format.File) (*data.Recording, *Header, error) {
 		maxSPR = max(maxSPR, s.SamplesPerRecord)
 	}
 	if len(count) == 0 {
-		return nil, nil, p.errf(offSignals, "number of signals", format.ErrUnsupported, "the file holds annotations only, no signals")
+		return nil, p.errf(offSignals, "number of signals", format.ErrUnsupported, "the file holds annotations only, no signals")
 	}
 	spr, best := 0, 0
 	for k, n := range count {
@@ -105,33 +140,43 @@ func Decode(f format.File) (*data.Recording, *Header, error) {
 			rec.Notes = append(rec.Notes, fmt.Sprintf("signal %d %q is called %q", kept[i]+1, h.Signals[kept[i]].Label, ch.Name))
 		}
 	}
+	return &decoding{p: p, h: h, rec: rec, spr: spr, maxSPR: maxSPR, kept: kept, ann: ann}, nil
+}
 
-	// Allocate the samples: bounded by the file size (≥ 2 bytes per sample)
-	// and by data.MaxSampleBytes where that is set.
-	total := h.Records * int64(spr)
-	if err := data.CheckSamples(int64(len(kept)) * total); err != nil {
-		return nil, nil, p.errf(h.HeaderBytes, "data records", data.ErrTooLarge, "%d signals × %d samples: %v", len(kept), total, err)
-	}
-	rec.Samples = make([][]float32, len(kept))
-	for i := range kept {
-		rec.Samples[i] = make([]float32, total)
-	}
-
-	st := &stamps{p: p, h: h, maxRate: rate(maxSPR, h.RecordDuration)}
+// scan goes through the data records once: it reads the annotations and
+// checks the time stamps, and with samples set it scales every kept
+// signal into rec.Samples. Without samples, a file with no annotation
+// signal is not read at all.
+func (d *decoding) scan(samples bool) error {
+	p, h, rec, spr, kept, ann := d.p, d.h, d.rec, d.spr, d.kept, d.ann
+	st := &stamps{p: p, h: h, maxRate: rate(d.maxSPR, h.RecordDuration)}
 	per := max(1, min(h.Records, chunkBytes/h.RecordBytes))
-	buf := make([]byte, per*h.RecordBytes)
+	read := samples || len(ann) > 0
+	var buf []byte
+	if read {
+		buf = make([]byte, per*h.RecordBytes)
+	}
 	var t tal
 	for r0 := int64(0); r0 < h.Records; r0 += per {
 		n := min(per, h.Records-r0)
 		off := h.HeaderBytes + r0*h.RecordBytes
-		b := buf[:n*h.RecordBytes]
-		if err := p.readAt(b, off, fmt.Sprintf("data record %d", r0+1)); err != nil {
-			return nil, nil, err
+		var b []byte
+		if read {
+			b = buf[:n*h.RecordBytes]
+			if err := p.readAt(b, off, fmt.Sprintf("data record %d", r0+1)); err != nil {
+				return err
+			}
 		}
 		for k := int64(0); k < n; k++ {
-			rb := b[k*h.RecordBytes : (k+1)*h.RecordBytes]
 			r := r0 + k
+			var rb []byte
+			if read {
+				rb = b[k*h.RecordBytes : (k+1)*h.RecordBytes]
+			}
 			for c, si := range kept {
+				if !samples {
+					break
+				}
 				s := &h.Signals[si]
 				dst := rec.Samples[c][r*int64(spr) : (r+1)*int64(spr)]
 				src := rb[s.offset:]
@@ -151,7 +196,7 @@ func Decode(f format.File) (*data.Recording, *Header, error) {
 				for first := true; ; first = false {
 					ok, err := sc.next(&t)
 					if err != nil {
-						return nil, nil, err
+						return err
 					}
 					if !ok {
 						break
@@ -159,10 +204,10 @@ func Decode(f format.File) (*data.Recording, *Header, error) {
 					texts := t.texts
 					if a == 0 && first && h.Plus {
 						if len(texts) == 0 || texts[0] != "" || t.hasDur {
-							return nil, nil, p.errf(t.off, "annotation", format.ErrSyntax, "the first TAL of data record %d is not a time stamp \"+t\\x14\\x14\"", r+1)
+							return p.errf(t.off, "annotation", format.ErrSyntax, "the first TAL of data record %d is not a time stamp \"+t\\x14\\x14\"", r+1)
 						}
 						if err := st.add(r, t.onset, t.off); err != nil {
-							return nil, nil, err
+							return err
 						}
 						texts = texts[1:]
 					}
@@ -176,7 +221,7 @@ func Decode(f format.File) (*data.Recording, *Header, error) {
 			}
 			if h.Plus && (len(ann) == 0 || st.n == r) {
 				if h.Discontinuous {
-					return nil, nil, p.errf(off+k*h.RecordBytes, fmt.Sprintf("data record %d", r+1), format.ErrSyntax, "EDF+D data record has no time stamp")
+					return p.errf(off+k*h.RecordBytes, fmt.Sprintf("data record %d", r+1), format.ErrSyntax, "EDF+D data record has no time stamp")
 				}
 				st.n++ // EDF+C without stamps: contiguous by definition
 			}
@@ -190,7 +235,7 @@ func Decode(f format.File) (*data.Recording, *Header, error) {
 	if h.Trailing > 0 {
 		rec.Notes = append(rec.Notes, fmt.Sprintf("%d byte(s) after the last data record (offset %d) ignored", h.Trailing, h.HeaderBytes+h.Records*h.RecordBytes))
 	}
-	return rec, h, nil
+	return nil
 }
 
 // stamps checks record time stamps.
