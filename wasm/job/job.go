@@ -121,12 +121,10 @@ func (w *Worker) HandleFiles(ctx context.Context, req wire.Request, list []forma
 		post(wire.Reply{Op: wire.OpError, Seq: req.Seq, Error: err.Error()}, nil)
 	}
 	files := Files{}
-	var total int64
 	for _, f := range list {
 		files[f.Name] = f
-		total += f.Size
 	}
-	if total > MaxBytes {
+	if total := heldBytes(list); total > MaxBytes {
 		fail(fmt.Errorf("%s: %d MiB of files is more than the %d MiB one worker can hold", req.Source.Name, total>>20, MaxBytes>>20))
 		return
 	}
@@ -274,6 +272,25 @@ func (w *Worker) HandleFiles(ctx context.Context, req wire.Request, list []forma
 	default:
 		fail(fmt.Errorf("worker: unknown operation %q", req.Op))
 	}
+}
+
+// heldBytes is how many bytes of the files the worker may come to hold: a
+// recording in a format that streams (format.Format.Open: EDF, BDF) stays
+// in its file and is read in slices, so only its epochs or an envelope
+// analysis's chunks are held, and those are checked against the sample
+// budget (data.CheckSamples) where they are made.
+func heldBytes(list []format.File) int64 {
+	var total int64
+	for _, f := range list {
+		head := make([]byte, min(f.Size, format.HeadLen))
+		if _, err := f.R.ReadAt(head, 0); err == nil || errors.Is(err, io.EOF) {
+			if ft, ok := format.Detect(head, f.Name); ok && ft.Open != nil && f.Size > 0 {
+				continue
+			}
+		}
+		total += f.Size
+	}
+	return total
 }
 
 // headLen is how much of each file Recognise looks at.
