@@ -18,6 +18,7 @@ func init() {
 		Magic:  "RIFF????WAVE",
 		Ext:    []string{".wav"},
 		Decode: Decode,
+		Open:   openData,
 	})
 }
 
@@ -283,21 +284,28 @@ func (r *Reader) Read(f format.File) (*data.Recording, error) {
 			return nil, err
 		}
 		if bad := convert(rec.Samples, int(k), p, h); bad >= 0 {
-			frame, c := int64(bad/nc), bad%nc
-			at := bad * h.Bits / 8
-			var what string
-			if h.Bits == 32 {
-				what = fmt.Sprint(math.Float32frombits(binary.LittleEndian.Uint32(p[at:])))
-			} else if v := math.Float64frombits(binary.LittleEndian.Uint64(p[at:])); math.IsNaN(v) || math.IsInf(v, 0) {
-				what = fmt.Sprint(v)
-			} else {
-				what = fmt.Sprintf("%g, beyond the float32 range", v)
-			}
-			return nil, errf(f, off+int64(at), "data chunk", "sample %d of channel ch%d is %s", k+frame+1, c+1, what)
+			return nil, badSample(f, p, h, off, k, bad)
 		}
 		k += n
 	}
 	return rec, nil
+}
+
+// badSample is the error for the bad float sample of index bad in the
+// frames p read at off, the first of which is frame k.
+func badSample(f format.File, p []byte, h *Header, off, k int64, bad int) error {
+	nc := h.Channels
+	frame, c := int64(bad/nc), bad%nc
+	at := bad * h.Bits / 8
+	var what string
+	if h.Bits == 32 {
+		what = fmt.Sprint(math.Float32frombits(binary.LittleEndian.Uint32(p[at:])))
+	} else if v := math.Float64frombits(binary.LittleEndian.Uint64(p[at:])); math.IsNaN(v) || math.IsInf(v, 0) {
+		what = fmt.Sprint(v)
+	} else {
+		what = fmt.Sprintf("%g, beyond the float32 range", v)
+	}
+	return errf(f, off+int64(at), "data chunk", "sample %d of channel ch%d is %s", k+frame+1, c+1, what)
 }
 
 // convert de-interleaves the frames in p into dst[c][k:]. For float data it
