@@ -59,7 +59,7 @@ func (ep *envPlan) compute(ctx context.Context, p *Plan, seg int, span [2]int) (
 			return nil, err
 		}
 	}
-	// Binned envelopes (connect.Envelope, connect.OrthEnvelope).
+	// Binned envelopes (connect.Envelope, connect.OrthEnvelopes).
 	series := make([][]float64, ep.nSeries+len(ep.chans)*(len(ep.chans)-1))
 	for i, z := range za {
 		series[i] = connect.Envelope(nil, z, ep.bin, nil, ep.kind)
@@ -68,17 +68,9 @@ func (ep *envPlan) compute(ctx context.Context, p *Plan, seg int, span [2]int) (
 		series[n+i] = connect.Envelope(nil, z, ep.bin, nil, ep.kind)
 	}
 	if a.Orthogonalize == OrthPairwise {
-		// |Y⊥X| = |Im(y·ū)| with the unit phasors u = x/|x|, so each
-		// channel's phasors are computed once.
-		var u []complex128
-		for i := range n {
-			u = connect.UnitPhasors(u, za[i])
-			for j := range n {
-				if i != j {
-					series[ep.orthSeries(i, j)] = connect.OrthEnvelope(nil, u, za[j], ep.bin, nil, ep.kind)
-				}
-			}
-		}
+		// Every ordered pair at once, blocked by time (series[ep.orthSeries(i,
+		// j)] is series[n+connect.OrthIndex(n, i, j)]).
+		connect.OrthEnvelopes(series[n:n+n*(n-1)], za, ep.bin, nil, ep.kind, nil)
 	}
 	out := make([]float64, 0, 6*len(ep.terms))
 	for _, t := range ep.terms {
