@@ -18,18 +18,13 @@ func (ep *envPlan) compute(ctx context.Context, p *Plan, seg int, span [2]int) (
 	a := ep.a
 	n := len(ep.chans)
 	var za, zb [][]complex128
-	convs := map[int]*spectral.Convolver{}
+	// Overlap-save blocks for a chunk, one transform for a short trial
+	// (spectral.BandFilter).
+	filter := p.bank.NewBandFilter()
 	band := func(ch int, freqs []int) []complex128 {
 		x := ep.src.samples(seg, ch)
 		lo, hi := spectral.Crop(len(x), span[0], span[1], ep.src.margin)
-		nfft := spectral.GoodSize(hi - lo + 2*ep.src.margin)
-		c := convs[nfft]
-		if c == nil {
-			c = p.bank.NewConvolver(nfft)
-			convs[nfft] = c
-		}
-		c.Load(x[lo:hi])
-		return connect.BandSignal(nil, c, freqs, span[0]-lo, span[1]-lo)
+		return filter.Band(nil, freqs, x[lo:hi], span[0]-lo, span[1]-lo)
 	}
 	if ep.como {
 		// One series per frequency on the first (seed) and last (target) channel.
