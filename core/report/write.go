@@ -87,18 +87,116 @@ func (res *Results) Table() (header []string, rows [][]string) {
 // A cell a spreadsheet would run as a formula gets a leading apostrophe
 // (QuoteCell); numbers are written as they are.
 func WriteCSV(w io.Writer, res *Results) error {
-	cw := csv.NewWriter(w)
-	header, rows := res.Table()
-	if err := cw.Write(quoteCells(header)); err != nil {
+	tw, err := NewTableWriter(w, res.Columns())
+	if err != nil {
 		return err
 	}
-	for _, r := range rows {
-		if err := cw.Write(quoteCells(r)); err != nil {
+	for i := range res.Rows {
+		if err := tw.Write(&res.Rows[i]); err != nil {
 			return err
 		}
 	}
-	cw.Flush()
-	return cw.Error()
+	return tw.Flush()
+}
+
+// TableWriter writes a results table a row at a time, for tables too large
+// to hold: the header is given first (Results.Columns of every row to
+// come), and the bytes are those WriteCSV writes for the same rows.
+type TableWriter struct {
+	cw    *csv.Writer
+	cols  []string
+	cells []string
+	// The positions in cols of the last row's extra fields (−1: not a
+	// column, or a repeated name), reused while rows share their field
+	// names, as the rows of one table read back do.
+	names []string
+	pos   []int
+	extra map[string]int // extra column → position in cols
+}
+
+// NewTableWriter writes the header cols to w and returns the writer of
+// the rows.
+func NewTableWriter(w io.Writer, cols []string) (*TableWriter, error) {
+	tw := &TableWriter{cw: csv.NewWriter(w), cols: cols, cells: make([]string, len(cols)), extra: map[string]int{}}
+	for i, c := range cols {
+		switch c {
+		case "analysis", "type", "seed", "target", "method", "n", "r", "p":
+		default:
+			if _, dup := tw.extra[c]; !dup {
+				tw.extra[c] = i
+			}
+		}
+	}
+	if err := tw.cw.Write(quoteCells(cols)); err != nil {
+		return nil, err
+	}
+	return tw, nil
+}
+
+// Write writes one row's cells (Row.Cells of the header's columns).
+func (tw *TableWriter) Write(r *Row) error {
+	if !tw.sameNames(r.Extra) {
+		tw.names = tw.names[:0]
+		tw.pos = tw.pos[:0]
+		taken := map[int]bool{}
+		for _, f := range r.Extra {
+			i, ok := tw.extra[f.Name]
+			if !ok || taken[i] {
+				i = -1 // not a column, or a later field of the same name
+			} else {
+				taken[i] = true
+			}
+			tw.names = append(tw.names, f.Name)
+			tw.pos = append(tw.pos, i)
+		}
+	}
+	for i := range tw.cells {
+		tw.cells[i] = ""
+	}
+	for i, c := range tw.cols {
+		switch c {
+		case "analysis":
+			tw.cells[i] = r.Analysis
+		case "type":
+			tw.cells[i] = r.Type
+		case "seed":
+			tw.cells[i] = r.Seed
+		case "target":
+			tw.cells[i] = r.Target
+		case "method":
+			tw.cells[i] = r.Method
+		case "n":
+			tw.cells[i] = strconv.Itoa(r.N)
+		case "r":
+			tw.cells[i] = Num(r.R)
+		case "p":
+			tw.cells[i] = Num(r.P)
+		}
+	}
+	for k, f := range r.Extra {
+		if i := tw.pos[k]; i >= 0 {
+			tw.cells[i] = f.Value
+		}
+	}
+	return tw.cw.Write(quoteCells(tw.cells))
+}
+
+func (tw *TableWriter) sameNames(extra []Field) bool {
+	if len(extra) != len(tw.names) || tw.pos == nil {
+		return false
+	}
+	for k, f := range extra {
+		if f.Name != tw.names[k] {
+			return false
+		}
+	}
+	return true
+}
+
+// Flush writes what is buffered and returns the first error of any write.
+func (tw *TableWriter) Flush() error {
+	tw.cw.Flush()
+	return tw.cw.Error()
 }
 
 // WriteMapCSV writes one map: a header of column labels after the row-axis
