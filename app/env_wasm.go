@@ -30,13 +30,16 @@ type pool struct {
 	onReply func(worker int, rep wire.Reply, bufs []buffer)
 }
 
-// workerCount is navigator.hardwareConcurrency − 1, at least 1.
+// workerCount is navigator.hardwareConcurrency, at least 1: one worker per
+// core. The page's own thread only moves messages and draws in tasks of
+// under 200 ms, so a busy worker on every core leaves it responsive (the
+// browser tests time its tasks while the workers compute).
 func workerCount() int {
 	n := js.Global().Get("navigator").Get("hardwareConcurrency")
 	if n.Type() != js.TypeNumber {
 		return 1
 	}
-	return max(1, n.Int()-1)
+	return max(1, n.Int())
 }
 
 func newPool(n int, onReply func(int, wire.Reply, []buffer)) *pool {
