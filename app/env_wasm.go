@@ -385,6 +385,9 @@ func focusField(id string) {
 	el.Call("focus")
 }
 
+// copyBuffer copies an ArrayBuffer (sending one to a worker transfers it).
+func copyBuffer(b buffer) buffer { return b.Call("slice", 0) }
+
 // bufferText decodes an ArrayBuffer of UTF-8 text.
 func bufferText(buf js.Value) string {
 	if !buf.Truthy() {
