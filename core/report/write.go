@@ -243,6 +243,36 @@ func WriteJSON(w io.Writer, res *Results) error {
 	if out.Warnings == nil {
 		out.Warnings = []string{}
 	}
+	for _, m := range res.Maps {
+		out.Maps = append(out.Maps, m.Name)
+	}
+	for _, f := range res.Figures {
+		out.Figures = append(out.Figures, map[string]string{"name": f.Name, "title": f.Title})
+	}
+	if len(res.Recipe) > 0 && json.Valid(res.Recipe) {
+		out.Recipe = json.RawMessage(res.Recipe)
+	}
+	var doc bytes.Buffer
+	enc := json.NewEncoder(&doc)
+	enc.SetIndent("", "  ")
+	if err := enc.Encode(out); err != nil {
+		return err
+	}
+	// The rows are written here, indented as the encoder would indent
+	// them, into the place of the empty list: re-scanning every row's bytes
+	// twice (compacting, then indenting) was most of the time this took.
+	// JSON text never holds a raw newline inside a string, so the first
+	// "\n  \"rows\": []" is the field.
+	text := doc.Bytes()
+	at := bytes.Index(text, []byte("\n  \"rows\": []"))
+	if len(cells) == 0 || at < 0 {
+		_, err := w.Write(text)
+		return err
+	}
+	at += len("\n  \"rows\": [")
+	if _, err := w.Write(text[:at]); err != nil {
+		return err
+	}
 	// Each row is an object whose keys come in name order (as encoding/json
 	// writes a map), written directly rather than through a map per row.
 	last := map[string]int{}
@@ -254,42 +284,64 @@ func WriteJSON(w io.Writer, res *Results) error {
 		keys = append(keys, c)
 	}
 	sort.Strings(keys)
-	quoted := make([][]byte, len(keys))
+	prefix := make([][]byte, len(keys)) // ",\n      \"key\": " (no comma for the first)
+	col := make([]int, len(keys))
+	text2 := make([]bool, len(keys)) // always a string
 	for k, c := range keys {
-		quoted[k], _ = json.Marshal(c)
+		q, _ := json.Marshal(c)
+		if k > 0 {
+			prefix[k] = append(prefix[k], ',')
+		}
+		prefix[k] = append(append(append(prefix[k], "\n      "...), q...), ": "...)
+		col[k] = last[c]
+		text2[k] = c == "seed" || c == "target" || c == "analysis" || c == "recording"
 	}
-	var b []byte
-	for _, row := range cells {
-		b = append(b[:0], '{')
-		for k, c := range keys {
-			if k > 0 {
-				b = append(b, ',')
-			}
-			b = append(append(b, quoted[k]...), ':')
-			v := row[last[c]]
+	b := make([]byte, 0, 64<<10)
+	for i, row := range cells {
+		if i > 0 {
+			b = append(b, ',')
+		}
+		b = append(b, "\n    {"...)
+		for k := range keys {
+			b = append(b, prefix[k]...)
+			v := row[col[k]]
 			switch {
 			case v == "":
 				b = append(b, "null"...)
-			case isJSONNumber(v) && c != "seed" && c != "target" && c != "analysis" && c != "recording":
+			case !text2[k] && isJSONNumber(v):
 				b = append(b, v...)
 			default:
-				q, _ := json.Marshal(v)
-				b = append(b, q...)
+				b = appendJSONString(b, v)
 			}
 		}
-		b = append(b, '}')
-		out.Rows = append(out.Rows, json.RawMessage(bytes.Clone(b)))
+		b = append(b, "\n    }"...)
+		if len(b) >= 32<<10 {
+			if _, err := w.Write(b); err != nil {
+				return err
+			}
+			b = b[:0]
+		}
 	}
-	for _, m := range res.Maps {
-		out.Maps = append(out.Maps, m.Name)
+	b = append(b, "\n  "...)
+	if _, err := w.Write(b); err != nil {
+		return err
 	}
-	for _, f := range res.Figures {
-		out.Figures = append(out.Figures, map[string]string{"name": f.Name, "title": f.Title})
+	_, err := w.Write(text[at:])
+	return err
+}
+
+// appendJSONString appends s quoted as json.Marshal quotes it: printable
+// ASCII other than the quote, the backslash and the three characters
+// json.Marshal escapes for HTML (<, >, &) goes as it is; anything else goes
+// through json.Marshal.
+func appendJSONString(b []byte, s string) []byte {
+	for i := 0; i < len(s); i++ {
+		if c := s[i]; c < 0x20 || c > 0x7e || c == '"' || c == '\\' || c == '<' || c == '>' || c == '&' {
+			q, _ := json.Marshal(s)
+			return append(b, q...)
+		}
 	}
-	if len(res.Recipe) > 0 && json.Valid(res.Recipe) {
-		out.Recipe = json.RawMessage(res.Recipe)
-	}
-	enc := json.NewEncoder(w)
-	enc.SetIndent("", "  ")
-	return enc.Encode(out)
+	b = append(b, '"')
+	b = append(b, s...)
+	return append(b, '"')
 }
