@@ -24,6 +24,7 @@ const orthBlockLen = 256
 type OrthWork struct {
 	v      []float64 // per channel, orthBlockLen samples of (Re u, Im u, |y| or |y|²)
 	pieces []orthPiece
+	sums   [8]float64 // the four-partner sums, here so that passing them to sum4 does not allocate
 }
 
 // orthPiece is a run [lo, hi) of block samples that all fall into bin b.
@@ -81,9 +82,9 @@ func OrthEnvelopes(dst [][]float64, z [][]complex128, bin int, segs []int, kind 
 	flush := func() {
 		if fill > 0 {
 			if logp {
-				orthBlockSq(dst, work, n, fill, pieces)
+				orthBlock(dst, work, n, fill, pieces, orthSumSq4, orthSumSq1)
 			} else {
-				orthBlock(dst, work, n, fill, pieces)
+				orthBlock(dst, work, n, fill, pieces, orthSum4, orthSum1)
 			}
 		}
 		fill = 0
@@ -142,10 +143,14 @@ func OrthEnvelopes(dst [][]float64, z [][]complex128, bin int, segs []int, kind 
 
 // orthBlock adds one block's samples (fill of them per channel, bins as in
 // pieces) into the running bin sums of dst. Channel c's sample k is
-// w.v[c·3L + 3k …]: Re u, Im u, |y|.
-func orthBlock(dst [][]float64, w *OrthWork, n, fill int, pieces []orthPiece) {
+// w.v[c·3L + 3k …]: Re u, Im u, |y| (|y|² for LogPower). sum4 and sum1 are
+// the per-sample sums: orthSum4/orthSum1 for amplitude, orthSumSq4/orthSumSq1
+// for LogPower.
+func orthBlock(dst [][]float64, w *OrthWork, n, fill int, pieces []orthPiece,
+	sum4 func(s *[8]float64, x, y0, y1, y2, y3 []float64),
+	sum1 func(sf, sg float64, x, y []float64) (float64, float64)) {
 	const L = orthBlockLen
-	var s [8]float64
+	s := &w.sums
 	for i := 0; i < n; i++ {
 		vi := w.v[i*3*L : i*3*L+3*fill]
 		j := i + 1
@@ -158,8 +163,8 @@ func orthBlock(dst [][]float64, w *OrthWork, n, fill int, pieces []orthPiece) {
 			g0, g1, g2, g3 := dst[j*(n-1)+i], dst[(j+1)*(n-1)+i], dst[(j+2)*(n-1)+i], dst[(j+3)*(n-1)+i]
 			for _, pc := range pieces {
 				b, lo, hi := pc.b, 3*pc.lo, 3*pc.hi
-				s = [8]float64{f0[b], f1[b], f2[b], f3[b], g0[b], g1[b], g2[b], g3[b]}
-				orthSum4(&s, vi[lo:hi], v0[lo:hi], v1[lo:hi], v2[lo:hi], v3[lo:hi])
+				*s = [8]float64{f0[b], f1[b], f2[b], f3[b], g0[b], g1[b], g2[b], g3[b]}
+				sum4(s, vi[lo:hi], v0[lo:hi], v1[lo:hi], v2[lo:hi], v3[lo:hi])
 				f0[b], f1[b], f2[b], f3[b] = s[0], s[1], s[2], s[3]
 				g0[b], g1[b], g2[b], g3[b] = s[4], s[5], s[6], s[7]
 			}
@@ -169,7 +174,7 @@ func orthBlock(dst [][]float64, w *OrthWork, n, fill int, pieces []orthPiece) {
 			f, g := dst[i*(n-1)+j-1], dst[j*(n-1)+i]
 			for _, pc := range pieces {
 				b, lo, hi := pc.b, 3*pc.lo, 3*pc.hi
-				f[b], g[b] = orthSum1(f[b], g[b], vi[lo:hi], vj[lo:hi])
+				f[b], g[b] = sum1(f[b], g[b], vi[lo:hi], vj[lo:hi])
 			}
 		}
 	}
@@ -209,39 +214,6 @@ func orthSum1(sf, sg float64, x, y []float64) (float64, float64) {
 		sg += c * x[k+2]
 	}
 	return sf, sg
-}
-
-// orthBlockSq is orthBlock for LogPower: |y|²·Im(u_j·ū_i)² (w.v holds |y|²).
-func orthBlockSq(dst [][]float64, w *OrthWork, n, fill int, pieces []orthPiece) {
-	const L = orthBlockLen
-	var s [8]float64
-	for i := 0; i < n; i++ {
-		vi := w.v[i*3*L : i*3*L+3*fill]
-		j := i + 1
-		// Four partners at a time: eight independent sums per sample.
-		for ; j+4 <= n; j += 4 {
-			v0, v1 := w.v[j*3*L:j*3*L+3*fill], w.v[(j+1)*3*L:(j+1)*3*L+3*fill]
-			v2, v3 := w.v[(j+2)*3*L:(j+2)*3*L+3*fill], w.v[(j+3)*3*L:(j+3)*3*L+3*fill]
-			// |z_j ⊥ z_i| at OrthIndex(n, i, j) (j > i), |z_i ⊥ z_j| at OrthIndex(n, j, i).
-			f0, f1, f2, f3 := dst[i*(n-1)+j-1], dst[i*(n-1)+j], dst[i*(n-1)+j+1], dst[i*(n-1)+j+2]
-			g0, g1, g2, g3 := dst[j*(n-1)+i], dst[(j+1)*(n-1)+i], dst[(j+2)*(n-1)+i], dst[(j+3)*(n-1)+i]
-			for _, pc := range pieces {
-				b, lo, hi := pc.b, 3*pc.lo, 3*pc.hi
-				s = [8]float64{f0[b], f1[b], f2[b], f3[b], g0[b], g1[b], g2[b], g3[b]}
-				orthSumSq4(&s, vi[lo:hi], v0[lo:hi], v1[lo:hi], v2[lo:hi], v3[lo:hi])
-				f0[b], f1[b], f2[b], f3[b] = s[0], s[1], s[2], s[3]
-				g0[b], g1[b], g2[b], g3[b] = s[4], s[5], s[6], s[7]
-			}
-		}
-		for ; j < n; j++ {
-			vj := w.v[j*3*L : j*3*L+3*fill]
-			f, g := dst[i*(n-1)+j-1], dst[j*(n-1)+i]
-			for _, pc := range pieces {
-				b, lo, hi := pc.b, 3*pc.lo, 3*pc.hi
-				f[b], g[b] = orthSumSq1(f[b], g[b], vi[lo:hi], vj[lo:hi])
-			}
-		}
-	}
 }
 
 // orthSumSq4 is orthSum4 with Im(u_j·ū_i)² and |y|².
