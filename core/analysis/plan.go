@@ -39,6 +39,7 @@ type Plan struct {
 	freqs    []float64
 	cycles   []float64
 	bank     *spectral.Bank
+	forms    *connect.Forms // window powers' quadratic forms, shared by all units
 	units    []unit
 	later    []laterUnit // units that read the units' results (see Later)
 	finish   []finisher
@@ -101,6 +102,7 @@ func NewPlan(r *Recipe, ds *Dataset) (*Plan, error) {
 		return nil, ferr("spectral.high", "%g Hz is at or above the Nyquist frequency %g Hz of %s", sp.High, nyq, ds.Name)
 	}
 	p.freqs = freqs
+	p.forms = connect.NewForms(sp.WindowTolerance())
 	p.cycles = spectral.Cycles(len(freqs), sp.Cycles[0], sp.Cycles[1])
 	// No wavelet may be longer than the data: checked before any kernel is
 	// built, so a tiny file claiming an absurd rate allocates nothing.
@@ -349,7 +351,7 @@ func (p *Plan) Compute(ctx context.Context, id int) (UnitResult, error) {
 	if u.compute != nil {
 		vals, err = u.compute(ctx, p)
 	} else {
-		vals, err = connect.WindowPower(ctx, nil, p.bank, p.ds.Epochs, u.ch, u.spans)
+		vals, err = connect.WindowPower(ctx, nil, p.bank, p.forms, p.ds.Epochs, u.ch, u.spans)
 	}
 	if err != nil {
 		return UnitResult{}, err
