@@ -334,6 +334,7 @@ func (p *Page) startRun(mode string, recipeJSON []byte) {
 	p.done = make([]int, n)
 	p.unitBufs = make([]buffer, n)
 	p.unitsIn = 0
+	p.laterUnits, p.drawLater = nil, false
 	p.total = 0
 	p.started = nowMillis()
 	markTime("amplink-run")

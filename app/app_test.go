@@ -11,6 +11,7 @@ import (
 	"os"
 	"path/filepath"
 	"reflect"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -130,7 +131,7 @@ func TestFormRoundTrip(t *testing.T) {
 	vals := map[string]string{
 		"epochs.enabled": "on", "epochs.event": "tone", "epochs.start": "-1", "epochs.end": "2.0",
 		"spectral.low": "3", "spectral.high": "40", "spectral.steps": "28", "spectral.spacing": "linear",
-		"spectral.cycles.0": "3", "spectral.cycles.1": "9",
+		"spectral.cycles.0": "3", "spectral.cycles.1": "9", "spectral.tolerance": "1e-8",
 		"analyses.0.id": "w1", "analyses.0.method": "pearson",
 		"analyses.0.seed.channel": "C4", "analyses.0.seed.time.0": "-0.5", "analyses.0.seed.time.1": "-0.1",
 		"analyses.0.seed.freq.0": "15", "analyses.0.seed.freq.1": "25",
@@ -165,6 +166,26 @@ func TestFormRoundTrip(t *testing.T) {
 	h, _ := FormFromJSON(b)
 	if !reflect.DeepEqual(f.Values, h.Values) {
 		t.Fatal("a link did not restore every setting")
+	}
+}
+
+// TestFormKeepsTolerance: a recipe file's window-power tolerance survives
+// the form (before the field existed, the page dropped it and ran every
+// recipe at the default).
+func TestFormKeepsTolerance(t *testing.T) {
+	for _, tol := range []string{"0", "1e-08", "0.001"} {
+		f, err := FormFromJSON([]byte(`{"spectral": {"low": 2, "high": 60, "tolerance": ` + tol + `}, "analyses": [{"type": "envelope", "channels": ["A", "B"], "freq": [8, 12]}]}`))
+		if err != nil {
+			t.Fatal(err)
+		}
+		r, err := recipe.Parse(f.JSON())
+		if err != nil {
+			t.Fatal(err)
+		}
+		want, _ := strconv.ParseFloat(tol, 64)
+		if got := r.Spectral.WindowTolerance(); got != want {
+			t.Errorf("tolerance %s: the form's recipe has %g", tol, got)
+		}
 	}
 }
 

@@ -30,13 +30,16 @@ type pool struct {
 	onReply func(worker int, rep wire.Reply, bufs []buffer)
 }
 
-// workerCount is navigator.hardwareConcurrency − 1, at least 1.
+// workerCount is navigator.hardwareConcurrency, at least 1: one worker per
+// core. The page's own thread only moves messages and draws in tasks of
+// under 200 ms, so a busy worker on every core leaves it responsive (the
+// browser tests time its tasks while the workers compute).
 func workerCount() int {
 	n := js.Global().Get("navigator").Get("hardwareConcurrency")
 	if n.Type() != js.TypeNumber {
 		return 1
 	}
-	return max(1, n.Int()-1)
+	return max(1, n.Int())
 }
 
 func newPool(n int, onReply func(int, wire.Reply, []buffer)) *pool {
@@ -381,6 +384,9 @@ func focusField(id string) {
 	el.Call("scrollIntoView", opts)
 	el.Call("focus")
 }
+
+// copyBuffer copies an ArrayBuffer (sending one to a worker transfers it).
+func copyBuffer(b buffer) buffer { return b.Call("slice", 0) }
 
 // bufferText decodes an ArrayBuffer of UTF-8 text.
 func bufferText(buf js.Value) string {

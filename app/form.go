@@ -54,6 +54,7 @@ var topFields = []field{
 	{Key: "spectral.spacing", Kind: kChoice, Label: "Spacing", Choices: []string{"log", "linear"}, Default: "log"},
 	{Key: "spectral.cycles.0", Kind: kNum, Label: "Cycles at lowest", Default: "3"},
 	{Key: "spectral.cycles.1", Kind: kNum, Label: "Cycles at highest", Default: "10"},
+	{Key: "spectral.tolerance", Kind: kNum, Label: "Window-power tolerance (relative; 0: FFT only)", Default: "1e-10"},
 	{Key: "figures.draw", Kind: kBool, Label: "Draw figures (off is faster for large tables)"},
 	{Key: "figures.powerScale", Kind: kChoice, Label: "Power colour scale", Choices: []string{"log", "linear"}, Default: "log"},
 }
@@ -61,7 +62,7 @@ var topFields = []field{
 // Where topFields' groups start: epochs, spectral settings, figures.
 const (
 	topSpectral = 4
-	topFigures  = 10
+	topFigures  = 11
 )
 
 var (

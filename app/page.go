@@ -61,8 +61,10 @@ type Page struct {
 	total      int
 	unitBufs   []buffer
 	unitsIn    int
-	drawBufs   []buffer // the late figure units' results, from OpDrawn
-	drawWant   int      // workers asked for late figure units
+	drawBufs   []buffer    // the late figure units' (or later units') results, from OpDrawn
+	drawWant   int         // workers asked for late figure units (or later units)
+	laterUnits []wire.Unit // the run's later units (OpUnits' Late)
+	drawLater  bool        // the OpDrawn replies awaited are the later units
 	started    float64
 	status     string
 	runErr     string
@@ -317,13 +319,37 @@ func (p *Page) handleReply(k int, rep wire.Reply, bufs []buffer) {
 			p.unitsIn++
 		}
 		p.total = rep.Total
+		p.laterUnits = rep.Late
 		if p.unitsIn == len(p.unitBufs) {
 			names := make([]string, len(p.unitBufs))
 			for i := range names {
 				names[i] = fmt.Sprintf("units-%d", i)
 			}
-			p.pool.send(0, wire.Request{Op: wire.OpFinish, Seq: p.seq}, names, p.unitBufs)
 			p.phase = wire.PhaseCombining
+			if len(p.laterUnits) == 0 {
+				p.pool.send(0, wire.Request{Op: wire.OpFinish, Seq: p.seq}, names, p.unitBufs)
+				break
+			}
+			// the later units (envelope surrogates) read every worker's
+			// units: each worker gets a copy with its share, and worker 0
+			// the originals with the later results (OpDrawn, then OpFinish)
+			n := p.pool.size()
+			shares := make([][]wire.Unit, n)
+			for i, u := range p.laterUnits {
+				shares[i%n] = append(shares[i%n], u)
+			}
+			p.drawBufs, p.drawWant, p.drawLater = nil, 0, true
+			for k, sh := range shares {
+				if len(sh) > 0 {
+					cp := make([]buffer, len(p.unitBufs))
+					for i, b := range p.unitBufs {
+						cp[i] = copyBuffer(b)
+					}
+					p.pool.send(k, wire.Request{Op: wire.OpDrawUnits, Seq: p.seq, Late: sh}, names, cp)
+					p.drawWant++
+				}
+			}
+			p.phaseDone, p.phaseTotal = 0, len(p.laterUnits)
 		}
 	case wire.OpLate:
 		// the power maps the rows chose: one share per worker, handed back
@@ -347,6 +373,19 @@ func (p *Page) handleReply(k int, rep wire.Reply, bufs []buffer) {
 			p.drawBufs = append(p.drawBufs, bufs[0])
 		}
 		p.phaseDone += rep.Done
+		if len(p.drawBufs) == p.drawWant && p.drawLater {
+			p.drawLater = false
+			var names []string
+			for i := range p.unitBufs {
+				names = append(names, fmt.Sprintf("units-%d", i))
+			}
+			for i := range p.drawBufs {
+				names = append(names, fmt.Sprintf("later-units-%d", i))
+			}
+			p.pool.send(0, wire.Request{Op: wire.OpFinish, Seq: p.seq}, names, append(append([]buffer(nil), p.unitBufs...), p.drawBufs...))
+			p.drawBufs = nil
+			break
+		}
 		if len(p.drawBufs) == p.drawWant {
 			names := make([]string, len(p.drawBufs))
 			for i := range names {

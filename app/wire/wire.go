@@ -21,7 +21,11 @@ const (
 	// units over its workers (OpDrawUnits, each replying OpDrawn with their
 	// results as a buffer) and hands every result back to the worker that
 	// combined (OpDraw), which draws the figures and replies OpResults.
-	OpDrawUnits = "drawunits" // compute Late figure units (after OpRun); reply OpDrawn
+	// The same request carries a run's later units (the surrogates of
+	// envelope rows, listed in every OpUnits reply's Late): then with every
+	// worker's OpUnits buffer, and before OpFinish, which gets their
+	// OpDrawn buffers after the units'.
+	OpDrawUnits = "drawunits" // compute Late figure units, or later units with every OpUnits buffer (after OpRun); reply OpDrawn
 	OpDraw      = "draw"      // draw the figures from every OpDrawn buffer (after OpLate); reply OpResults
 )
 
@@ -86,7 +90,7 @@ type Request struct {
 	// OpPower: the channel to show.
 	Channel string `json:"channel,omitempty"`
 
-	// OpDrawUnits: the figure units this worker computes.
+	// OpDrawUnits: the figure units, or later units, this worker computes.
 	Late []Unit `json:"late,omitempty"`
 
 	// OpDescribe: what each file is (see all.Roles), in the order of the
@@ -118,7 +122,8 @@ type Reply struct {
 	Source     *Source  `json:"source,omitempty"`
 	RecipeText string   `json:"recipeText,omitempty"`
 
-	// OpLate: the figure units that remain to be computed.
+	// OpLate: the figure units that remain to be computed; OpUnits: the
+	// run's later units (none when the run has none).
 	Late []Unit `json:"late,omitempty"`
 
 	// OpPhase: the phase; with Done and Total when it counts.

@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"fmt"
 	"os"
 	"path/filepath"
 	"slices"
@@ -12,6 +13,7 @@ import (
 	"amplink/core/format"
 	"amplink/core/format/f32"
 	"amplink/core/recipe"
+	"amplink/core/report"
 )
 
 type dirSib string
@@ -85,6 +87,8 @@ func TestRunErrors(t *testing.T) {
 		{"few trials", []string{"--out", "x", "--trials", "2"}, "--trials 2"},
 		{"extra argument", []string{"--out", "x", "y"}, `unexpected argument "y"`},
 		{"unknown flag", []string{"--nope"}, "flag provided but not defined"},
+		{"few channels", []string{"--out", "x", "--channels", "3"}, "--channels 3"},
+		{"tables without template", []string{"--out", "x", "--tables", "2"}, "--template"},
 	} {
 		t.Run(c.name, func(t *testing.T) {
 			var out, errb bytes.Buffer
@@ -93,5 +97,47 @@ func TestRunErrors(t *testing.T) {
 				t.Errorf("error %v, want one containing %q", err, c.want)
 			}
 		})
+	}
+}
+
+// --tables writes one results table per simulated recording, made from the
+// template, that reads back with the template's rows and the new recording,
+// and a groups file naming every one.
+func TestRunWritesTables(t *testing.T) {
+	dir := t.TempDir()
+	tmpl := filepath.Join(dir, "template.csv")
+	var b bytes.Buffer
+	res := &report.Results{Rows: []report.Row{{Analysis: "a", Type: "trial-window", Seed: "E01", Target: "E02", Method: "spearman", N: 40, R: 0.3, P: 0.06,
+		Extra: []report.Field{{Name: "recording", Value: "one.f32"}}}}}
+	if err := report.WriteCSV(&b, res); err != nil {
+		t.Fatal(err)
+	}
+	os.WriteFile(tmpl, b.Bytes(), 0o644)
+	out := filepath.Join(dir, "tables")
+	var stdout, stderr bytes.Buffer
+	if err := run(&stdout, &stderr, []string{"--out", out, "--tables", "3", "--template", tmpl}); err != nil {
+		t.Fatalf("%v\n%s", err, stderr.String())
+	}
+	for i := range 3 {
+		p := filepath.Join(out, fmt.Sprintf("sub-%04d", i+1), "results.csv")
+		f, err := os.ReadFile(p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		got, err := report.ReadCSV(bytes.NewReader(f), p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if len(got.Rows) != 1 || got.Rows[0].Field("recording") != workload.TableName(i) || got.Rows[0].Target != "E02" {
+			t.Errorf("%s: %+v", p, got.Rows)
+		}
+	}
+	g, err := os.ReadFile(filepath.Join(out, "groups.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := "recording,group\nsub-0001_task-work_eeg.f32,a\nsub-0002_task-work_eeg.f32,b\nsub-0003_task-work_eeg.f32,a\n"
+	if string(g) != want {
+		t.Errorf("groups.csv %q, want %q", g, want)
 	}
 }

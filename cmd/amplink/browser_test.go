@@ -707,9 +707,22 @@ func (b *browser) logMarks(t *testing.T, what string) {
 		}
 		return fmt.Sprintf("%.1f s", (m[z]-m[a])/1000)
 	}
-	t.Logf("timing: %s: run %s (units %s, combining %s, drawing %s); worker: %s", what,
+	// the longest main-thread task while the workers computed (Run to the
+	// last unit in), and while they combined and drew (to the results)
+	busy, _ := chromedp.Run(b.ctx, chromedp.Evaluate[[]float64](fmt.Sprintf(`[[%[1]g, %[2]g], [%[2]g, %[3]g]].map(([a, z]) => (window.__amplinkLong || []).filter(e => e[1] >= a && e[1] < z).reduce((m, e) => Math.max(m, e[0]), 0))`,
+		m["amplink-run"], m["amplink-units"], m["amplink-results"])))
+	if len(busy) != 2 {
+		busy = []float64{-1, -1}
+	}
+	t.Logf("timing: %s: run %s (units %s, combining %s, drawing %s); worker: %s; %d workers; longest main-thread task (of those over 50 ms) while computing %.0f ms, while combining %.0f ms", what,
 		sec("amplink-run", "amplink-done"), sec("amplink-run", "amplink-units"), sec("amplink-units", "amplink-results"),
-		sec("amplink-results", "amplink-done"), b.text(t, "#run-timings"))
+		sec("amplink-results", "amplink-done"), b.text(t, "#run-timings"), workers(b), busy[0], busy[1])
+}
+
+// workers is how many workers the page starts: one per core it sees.
+func workers(b *browser) int {
+	n, _ := chromedp.Run(b.ctx, chromedp.Evaluate[int](`navigator.hardwareConcurrency`))
+	return max(1, n)
 }
 
 // sameCell compares two results cells: equal text, or numbers equal to a

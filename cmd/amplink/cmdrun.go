@@ -172,7 +172,7 @@ func cmdRun(stdout, stderr io.Writer, args []string) (err error) {
 		// Group rows across the recordings (the same rows amplink merge adds).
 		var groups map[string]string
 		if *groupsPath != "" {
-			if groups, err = readGroups(stderr, *groupsPath, all.Rows); err != nil {
+			if groups, err = readGroups(stderr, *groupsPath, rowRecordings(all.Rows)); err != nil {
 				return err
 			}
 		}

@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"encoding/json"
+	"hash/crc32"
 	"math"
 	"os"
 	"path/filepath"
@@ -10,6 +11,7 @@ import (
 	"strings"
 	"testing"
 
+	"amplink/core/figures"
 	"amplink/core/report"
 )
 
@@ -340,5 +342,114 @@ func TestMergeRunOutputs(t *testing.T) {
 			}
 			k++
 		}
+	}
+}
+
+// TestMergeStreamed: merge reads one table at a time, yet writes the bytes
+// of concatenating every table's per-recording rows and writing them with
+// their group rows at once (report.WriteCSV, report.GroupRows,
+// figures.Group), for tables whose columns differ in set and order, a
+// table of two recordings, a table holding only group rows (whose columns
+// must then not appear) and rows with an undefined r.
+func TestMergeStreamed(t *testing.T) {
+	dir := t.TempDir()
+	row := func(target, rec string, r float64, extra ...report.Field) report.Row {
+		return report.Row{Analysis: "a1", Type: "trial-window", Seed: "C4", Target: target, Method: "spearman", N: 30, R: r, P: 0.01,
+			Extra: append([]report.Field{{Name: "recording", Value: rec}}, extra...)}
+	}
+	nan := math.NaN()
+	tables := [][]report.Row{
+		{row("P3", "s1.edf", 0.3, report.Field{Name: "note", Value: "x, y"}), row("P4", "s1.edf", -0.2, report.Field{Name: "note", Value: ""}),
+			row("P3", "s2.edf", 0.5, report.Field{Name: "note", Value: "=1"}), row("P4", "s2.edf", nan, report.Field{Name: "note", Value: "undefined"})},
+		{row("P4", "s3.edf", 0.1, report.Field{Name: "extra_col", Value: "7"}, report.Field{Name: "note", Value: ""}),
+			row("P3", "s3.edf", 0.45, report.Field{Name: "extra_col", Value: "8"}, report.Field{Name: "note", Value: ""})},
+		{row("P3", "group", 0.4, report.Field{Name: "only_here", Value: "1"})},
+		{row("P3", "s4.edf", 0.35), row("P4", "s4.edf", 0.05)},
+	}
+	var files []string
+	var all []report.Row
+	for i, rows := range tables {
+		var b bytes.Buffer
+		// Every row of a table carries every column, as run writes them.
+		if err := report.WriteCSV(&b, &report.Results{Rows: rows}); err != nil {
+			t.Fatal(err)
+		}
+		p := filepath.Join(dir, strconv.Itoa(i), "results.csv")
+		os.MkdirAll(filepath.Dir(p), 0o755)
+		if err := os.WriteFile(p, b.Bytes(), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		files = append(files, p)
+		res, err := report.ReadCSV(bytes.NewReader(b.Bytes()), p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, r := range res.Rows {
+			if !r.IsGroupRow() {
+				all = append(all, r)
+			}
+		}
+	}
+	gp := filepath.Join(dir, "groups.csv")
+	os.WriteFile(gp, []byte("recording,group\ns1.edf,a\ns2.edf,b\ns3.edf,a\ns4.edf,b\n"), 0o644)
+	groups := map[string]string{"s1.edf": "a", "s2.edf": "b", "s3.edf": "a", "s4.edf": "b"}
+	grows, err := report.GroupRows(all, groups, 0.95)
+	if err != nil {
+		t.Fatal(err)
+	}
+	whole := &report.Results{Rows: append(all, grows...)}
+	var want bytes.Buffer
+	if err := report.WriteCSV(&want, whole); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(dir, "merged.csv")
+	figDir := filepath.Join(dir, "figs")
+	var stdout, stderr bytes.Buffer
+	if err := cmdMerge(&stdout, &stderr, append([]string{"--out", out, "--groups", gp, "--figures", figDir}, files...)); err != nil {
+		t.Fatalf("%v\n%s", err, stderr.String())
+	}
+	got, err := os.ReadFile(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !bytes.Equal(got, want.Bytes()) {
+		t.Errorf("streamed merge differs:\n%s\nwant\n%s", got, want.Bytes())
+	}
+	if bytes.Contains(got, []byte("only_here")) || !bytes.Contains(got, []byte("extra_col")) {
+		t.Errorf("columns: %s", bytes.SplitN(got, []byte("\n"), 2)[0])
+	}
+	if !strings.Contains(stdout.String(), "4 recordings from 4 tables: 8 rows and 8 group rows") {
+		t.Errorf("stdout %q", stdout.String())
+	}
+	figs := figures.Group(whole.Rows)
+	if len(figs) != 2 {
+		t.Fatalf("%d group figures, want 2", len(figs))
+	}
+	for _, f := range figs {
+		b, err := os.ReadFile(filepath.Join(figDir, f.Name+".svg"))
+		if err != nil || string(b) != f.SVG {
+			t.Errorf("figure %s differs from figures.Group's (%v)", f.Name, err)
+		}
+	}
+}
+
+// A table that changes between merge's two passes is refused.
+func TestMergeTableChanged(t *testing.T) {
+	p := filepath.Join(mergeDir, "out", "1", "results.csv")
+	b, err := os.ReadFile(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	tw, err := report.NewTableWriter(&bytes.Buffer{}, report.Fixed)
+	if err != nil {
+		t.Fatal(err)
+	}
+	in := mergeInput{path: p, size: len(b), sum: crc32.Checksum(b, castagnoli)}
+	if err := writeTable(tw, in); err != nil {
+		t.Fatalf("unchanged table: %v", err)
+	}
+	in.sum++
+	if err := writeTable(tw, in); err == nil || !strings.Contains(err.Error(), "changed while it was being merged") {
+		t.Errorf("changed table: error %v", err)
 	}
 }

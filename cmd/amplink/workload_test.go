@@ -22,8 +22,7 @@ import (
 // and the recipe, run, read the table. It is a benchmark, not a check of
 // the suite: it runs only when AMPLINK_WORKLOAD names the workload's
 // directory, never in CI. AMPLINK_WORKLOAD_WORKERS sets the core count the
-// page sees (it starts that many workers minus one; default: the
-// machine's), AMPLINK_WORKLOAD_REPS the number of runs (default 3).
+// page sees (it starts one worker per core; default: the machine's), AMPLINK_WORKLOAD_REPS the number of runs (default 3).
 //
 //	go run ./cmd/amplink-workload --out /tmp/wl
 //	AMPLINK_WORKLOAD=/tmp/wl go test -run TestBrowserWorkload -v ./cmd/amplink
@@ -43,7 +42,7 @@ func TestBrowserWorkload(t *testing.T) {
 	}
 	b := newBrowser(t)
 	if v, err := strconv.Atoi(os.Getenv("AMPLINK_WORKLOAD_WORKERS")); err == nil && v > 0 {
-		js := fmt.Sprintf(`Object.defineProperty(Navigator.prototype, "hardwareConcurrency", {get: () => %d});`, v+1)
+		js := fmt.Sprintf(`Object.defineProperty(Navigator.prototype, "hardwareConcurrency", {get: () => %d});`, v)
 		if _, err := chromedp.Call(b.ctx, page.AddScriptToEvaluateOnNewDocument, page.AddScriptToEvaluateOnNewDocumentParams{Source: js}); err != nil {
 			t.Fatal(err)
 		}
@@ -69,7 +68,7 @@ func TestBrowserWorkload(t *testing.T) {
 			(marks["amplink-done"]-marks["amplink-results"])/1000)
 	}
 	slices.Sort(walls)
-	t.Logf("standard workload in the page, %d worker(s) (hardwareConcurrency %d): median %.2f s of %v", max(1, workers-1), workers, walls[len(walls)/2], walls)
+	t.Logf("standard workload in the page, %d worker(s) (hardwareConcurrency %d): median %.2f s of %v", max(1, workers), workers, walls[len(walls)/2], walls)
 
 	pt := b.table(t)
 	checkHeader(t, pt.H)

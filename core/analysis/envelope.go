@@ -95,6 +95,7 @@ type envPlan struct {
 	storeZ  bool     // units also return the band signals (orthogonalised surrogates)
 	uspans  [][2]int // span of every unit, in unit order
 	segLen  int      // samples per segment of the time course (0: none)
+	later   []int    // the rows' surrogate units (Plan.later indices), surrBlock surrogates each, row by row
 }
 
 // term is one pair of series to correlate: series indices into the unit's
@@ -267,6 +268,7 @@ func (p *Plan) planEnvelope(path string, a *Analysis) (finisher, error) {
 			return nil, err
 		}
 	}
+	p.surrogateUnits(ep)
 	return ep, nil
 }
 
@@ -371,41 +373,46 @@ func (p *Plan) envUnit(ep *envPlan, seg int, span [2]int) int {
 	return id
 }
 
-func (ep *envPlan) finish(ctx context.Context, p *Plan, res []UnitResult, out *report.Results) error {
-	a := ep.a
-	nu := len(ep.units)
-	mos := make([][]connect.Moments, nu)
-	var stored [][]float64   // per series, concatenated over units
-	var unitLen []int        // stored samples per unit
-	var bands [][]complex128 // band signals per channel, concatenated over units
-	var rawLen []int         // band-signal samples per unit
+// gather collects the units' moments, and concatenates their stored
+// series and band signals over units.
+func (ep *envPlan) gather(res []UnitResult) *envData {
+	d := &envData{mos: make([][]connect.Moments, len(ep.units))}
 	if ep.store {
-		stored = make([][]float64, ep.storedSeries())
+		d.stored = make([][]float64, ep.storedSeries())
 	}
 	if ep.storeZ {
-		bands = make([][]complex128, len(ep.chans))
+		d.bands = make([][]complex128, len(ep.chans))
 	}
 	for u, id := range ep.units {
 		mo, series, raw := ep.unitParts(u, res[id].Values)
-		mos[u] = mo
+		d.mos[u] = mo
 		if ep.storeZ {
-			rawLen = append(rawLen, len(raw[0]))
+			d.rawLen = append(d.rawLen, len(raw[0]))
 			for c := range raw {
-				bands[c] = append(bands[c], raw[c]...)
+				d.bands[c] = append(d.bands[c], raw[c]...)
 			}
 		}
 		if ep.store {
-			unitLen = append(unitLen, len(series[0]))
+			d.unitLen = append(d.unitLen, len(series[0]))
 			for s := range series {
-				stored[s] = append(stored[s], series[s]...)
+				d.stored[s] = append(d.stored[s], series[s]...)
 			}
 		}
 	}
+	return d
+}
+
+// finish reads res by unit ID, the later (surrogate) units' results from
+// len(p.units) on.
+func (ep *envPlan) finish(ctx context.Context, p *Plan, res []UnitResult, out *report.Results) error {
+	a := ep.a
+	nu := len(ep.units)
+	d := ep.gather(res)
+	mos, stored := d.mos, d.stored
 	if ep.como {
 		return ep.finishComodulogram(mos, out)
 	}
 	spearman := a.Method == "spearman"
-	rng := stats.NewRand(a.RandomSeed)
 	var rows []report.Row
 	var ps []float64
 	n := len(ep.chans)
@@ -419,7 +426,7 @@ func (ep *envPlan) finish(ctx context.Context, p *Plan, res []UnitResult, out *r
 			rmat[i][i] = 1
 		}
 	}
-	for _, pr := range ep.rows {
+	for ri, pr := range ep.rows {
 		if err := ctx.Err(); err != nil {
 			return err
 		}
@@ -448,7 +455,7 @@ func (ep *envPlan) finish(ctx context.Context, p *Plan, res []UnitResult, out *r
 				note = joinNote(note, fmt.Sprintf("%d of %d trials had an undefined r and were left out", nu-len(zs), nu))
 			}
 			if a.Surrogates > 0 && !math.IsNaN(r) {
-				psurr = ep.trialShuffle(pr, stored, unitLen, r, rng, spearman, bands, rawLen)
+				psurr = ep.surrogateP(res, ri, len(p.units), r)
 			}
 		default:
 			if spearman {
@@ -471,11 +478,7 @@ func (ep *envPlan) finish(ctx context.Context, p *Plan, res []UnitResult, out *r
 				}
 				pmethod = "effective-n"
 				if a.Surrogates > 0 {
-					if ep.epoched {
-						psurr = ep.trialShuffle(pr, stored, unitLen, r, rng, spearman, bands, rawLen)
-					} else {
-						psurr = ep.timeShift(pr, stored, r, rng, spearman, bands, rawLen)
-					}
+					psurr = ep.surrogateP(res, ri, len(p.units), r)
 				}
 			}
 		}

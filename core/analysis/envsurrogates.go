@@ -1,6 +1,7 @@
 package analysis
 
 import (
+	"context"
 	"math"
 
 	"amplink/core/analysis/connect"
@@ -10,40 +11,122 @@ import (
 // The surrogate p-values of envelope rows: time shifts of a recording,
 // trial shuffles of epochs, and for orthogonalised rows the shifted or
 // shuffled complex band signal corrected again, as the observed r is.
+//
+// They are later units of the plan (see Plan.Later): each row's surrogates
+// are cut into blocks of surrBlock, and each block is a unit that reads
+// the envelope units' results and returns its surrogates' r values (none
+// when the row has no valid surrogate, such as a recording too short for
+// its shifts). Block b of row k draws from stats.NewRandFor(seed, k·B + b),
+// B the blocks per row, so a block's values do not depend on which worker
+// computes it, or when; Finish counts the values against the observed r.
 
-// timeShift returns the surrogate p of r: the second series of each term is
-// shifted circularly by a random lag of at least a tenth of the record (and
-// never less than five times the lag at which either envelope's
-// autocorrelation falls below 1/e), breaking their alignment but not their
-// own temporal structure. p = (b + 1)/(S + 1).
-func (ep *envPlan) timeShift(pr pairRow, stored [][]float64, r float64, rng interface{ IntN(int) int }, spearman bool, zs [][]complex128, rawLen []int) float64 {
-	if ep.storeZ {
-		return ep.orthSurrogate(pr, stored, nil, r, rng, spearman, zs, rawLen)
+// surrBlock is the number of surrogates one later unit computes.
+const surrBlock = 50
+
+// envData is an envelope analysis's unit results gathered: every unit's
+// moments, and the stored series and band signals concatenated over units.
+type envData struct {
+	mos     [][]connect.Moments
+	stored  [][]float64    // per series, concatenated over units
+	unitLen []int          // stored samples per unit
+	bands   [][]complex128 // band signals per channel, concatenated over units
+	rawLen  []int          // band-signal samples per unit
+}
+
+// surrogateUnits registers the later units of ep's rows: one per block of
+// surrBlock surrogates of each row.
+func (p *Plan) surrogateUnits(ep *envPlan) {
+	if ep.a.Surrogates <= 0 || ep.como {
+		return
 	}
+	nb := (ep.a.Surrogates + surrBlock - 1) / surrBlock
+	samples := 0.0
+	for _, sp := range ep.uspans {
+		samples += float64(sp[1] - sp[0])
+	}
+	for k, pr := range ep.rows {
+		for b := range nb {
+			n := min(surrBlock, ep.a.Surrogates-b*surrBlock)
+			stream := k*nb + b
+			ep.later = append(ep.later, len(p.later))
+			p.later = append(p.later, laterUnit{
+				Unit: Unit{Kind: "surrogates", Channels: []string{pr.seed, pr.target}, Cost: float64(n) * samples * float64(len(pr.terms))},
+				compute: func(ctx context.Context, l *Later) ([]float64, error) {
+					d := l.envData(ep)
+					rng := stats.NewRandFor(ep.a.RandomSeed, uint64(stream))
+					return ep.surrogateRs(ctx, pr, d, rng, n)
+				},
+			})
+		}
+	}
+}
+
+// surrogateP is the surrogate p of a row with observed r from its blocks'
+// values: p = (b + 1)/(S + 1), b the surrogates with |r_s| ≥ |r|; NaN when
+// a block has no valid surrogate.
+func (ep *envPlan) surrogateP(res []UnitResult, row int, base int, r float64) float64 {
+	nb := (ep.a.Surrogates + surrBlock - 1) / surrBlock
+	b := 0
+	for k := range nb {
+		v := res[base+ep.later[row*nb+k]].Values
+		if len(v) == 0 {
+			return math.NaN()
+		}
+		for _, rs := range v {
+			if !math.IsNaN(rs) && math.Abs(rs) >= math.Abs(r)-1e-12 {
+				b++
+			}
+		}
+	}
+	return stats.PermP(b, ep.a.Surrogates)
+}
+
+// surrogateRs returns n surrogate r values of row pr, or nil when the row
+// has none (a recording too short for its shifts; a failed correction).
+func (ep *envPlan) surrogateRs(ctx context.Context, pr pairRow, d *envData, rng interface{ IntN(int) int }, n int) ([]float64, error) {
+	spearman := ep.a.Method == "spearman"
+	switch {
+	case ep.storeZ && ep.epoched:
+		return ep.orthSurrogate(ctx, pr, d, d.unitLen, rng, spearman, n)
+	case ep.storeZ:
+		return ep.orthSurrogate(ctx, pr, d, nil, rng, spearman, n)
+	case ep.epoched:
+		return ep.trialShuffle(ctx, pr, d, rng, spearman, n)
+	}
+	return ep.timeShift(ctx, pr, d, rng, spearman, n)
+}
+
+// timeShift: the second series of each term is shifted circularly by a
+// random lag of at least a tenth of the record (and never less than five
+// times the lag at which either envelope's autocorrelation falls below
+// 1/e), breaking their alignment but not their own temporal structure.
+func (ep *envPlan) timeShift(ctx context.Context, pr pairRow, d *envData, rng interface{ IntN(int) int }, spearman bool, count int) ([]float64, error) {
+	stored := d.stored
 	n := len(stored[0])
 	minLag := n / 10
 	for _, t := range pr.terms {
 		minLag = max(minLag, 5*decorrLag(stored[ep.terms[t].x]), 5*decorrLag(stored[ep.terms[t].y]))
 	}
 	if 2*minLag >= n {
-		return math.NaN()
+		return nil, nil
 	}
 	sc := make([]stats.ShiftCorr, len(pr.terms))
 	for i, t := range pr.terms {
 		sc[i] = stats.NewShiftCorr(stored[ep.terms[t].x], stored[ep.terms[t].y], spearman)
 	}
 	rs := make([]float64, len(pr.terms))
-	b := 0
-	for range ep.a.Surrogates {
+	out := make([]float64, count)
+	for s := range out {
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
 		lag := minLag + rng.IntN(n-2*minLag+1)
 		for i := range sc {
 			rs[i] = sc[i].At(lag)
 		}
-		if rsur := meanR(rs); !math.IsNaN(rsur) && math.Abs(rsur) >= math.Abs(r)-1e-12 {
-			b++
-		}
+		out[s] = meanR(rs)
 	}
-	return stats.PermP(b, ep.a.Surrogates)
+	return out, nil
 }
 
 // decorrLag returns the first lag at which the autocorrelation of x falls
@@ -70,12 +153,10 @@ func decorrLag(x []float64) int {
 	return n / 4
 }
 
-// trialShuffle returns the surrogate p for epoched input: the trials of the
-// second series are paired with randomly permuted trials of the first.
-func (ep *envPlan) trialShuffle(pr pairRow, stored [][]float64, unitLen []int, r float64, rng interface{ IntN(int) int }, spearman bool, zs [][]complex128, rawLen []int) float64 {
-	if ep.storeZ {
-		return ep.orthSurrogate(pr, stored, unitLen, r, rng, spearman, zs, rawLen)
-	}
+// trialShuffle is for epoched input: the trials of the second series are
+// paired with randomly permuted trials of the first.
+func (ep *envPlan) trialShuffle(ctx context.Context, pr pairRow, d *envData, rng interface{ IntN(int) int }, spearman bool, count int) ([]float64, error) {
+	stored, unitLen := d.stored, d.unitLen
 	nt := len(unitLen)
 	off := make([]int, nt+1)
 	for t, l := range unitLen {
@@ -86,14 +167,17 @@ func (ep *envPlan) trialShuffle(pr pairRow, stored [][]float64, unitLen []int, r
 		perm[i] = i
 	}
 	concat := ep.a.Trials == "concatenate"
-	b := 0
 	var buf []float64
-	for range ep.a.Surrogates {
+	rs := make([]float64, len(pr.terms))
+	out := make([]float64, count)
+	for s := range out {
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
 		for i := nt - 1; i > 0; i-- {
 			j := rng.IntN(i + 1)
 			perm[i], perm[j] = perm[j], perm[i]
 		}
-		rs := make([]float64, len(pr.terms))
 		for ti, t := range pr.terms {
 			x, y := stored[ep.terms[t].x], stored[ep.terms[t].y]
 			if concat {
@@ -115,21 +199,19 @@ func (ep *envPlan) trialShuffle(pr pairRow, stored [][]float64, unitLen []int, r
 				rs[ti] = math.Tanh(mean(zs))
 			}
 		}
-		if rsur := meanR(rs); !math.IsNaN(rsur) && math.Abs(rsur) >= math.Abs(r)-1e-12 {
-			b++
-		}
+		out[s] = meanR(rs)
 	}
-	return stats.PermP(b, ep.a.Surrogates)
+	return out, nil
 }
 
-// orthSurrogate is the surrogate p of an orthogonalised row: channel j's
-// band signal is shifted circularly (recordings, a lag in whole envelope
-// bins drawn as in timeShift, from the envelopes of i and j) or its trials
-// are permuted (epochs, unitLen non-nil), and only then orthogonalised
-// against the unshifted channel i, both ways, or re-orthogonalised with
-// the whole set (connect.PairTerms), and the terms correlated as the
-// observed r was.
-func (ep *envPlan) orthSurrogate(pr pairRow, stored [][]float64, unitLen []int, r float64, rng interface{ IntN(int) int }, spearman bool, zs [][]complex128, rawLen []int) float64 {
+// orthSurrogate is for an orthogonalised row: channel j's band signal is
+// shifted circularly (recordings, a lag in whole envelope bins drawn as in
+// timeShift, from the envelopes of i and j) or its trials are permuted
+// (epochs, unitLen non-nil), and only then orthogonalised against the
+// unshifted channel i, both ways, or re-orthogonalised with the whole set
+// (connect.PairTerms), and the terms correlated as the observed r was.
+func (ep *envPlan) orthSurrogate(ctx context.Context, pr pairRow, d *envData, unitLen []int, rng interface{ IntN(int) int }, spearman bool, count int) ([]float64, error) {
+	stored, zs, rawLen := d.stored, d.bands, d.rawLen
 	corr := connect.PairwiseOrth
 	if ep.a.Orthogonalize == OrthSymmetric {
 		corr = connect.SymmetricOrth
@@ -139,7 +221,7 @@ func (ep *envPlan) orthSurrogate(pr pairRow, stored [][]float64, unitLen []int, 
 	if unitLen == nil {
 		minLag = max(nb/10, 5*decorrLag(stored[pr.i]), 5*decorrLag(stored[pr.j]))
 		if 2*minLag >= nb {
-			return math.NaN()
+			return nil, nil
 		}
 	}
 	perm := make([]int, len(rawLen))
@@ -147,8 +229,11 @@ func (ep *envPlan) orthSurrogate(pr pairRow, stored [][]float64, unitLen []int, 
 		perm[i] = i
 	}
 	pt := connect.NewPairTermer(zs, pr.i, pr.j, corr, ep.bin, rawLen, ep.kind)
-	b := 0
-	for range ep.a.Surrogates {
+	out := make([]float64, count)
+	for s := range out {
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
 		var terms [][2][]float64
 		var err error
 		if unitLen != nil {
@@ -162,14 +247,11 @@ func (ep *envPlan) orthSurrogate(pr pairRow, stored [][]float64, unitLen []int, 
 			terms, err = pt.Shifted(lag * ep.bin % len(zs[pr.j]))
 		}
 		if err != nil {
-			return math.NaN()
+			return nil, nil
 		}
-		rsur := ep.surrR(terms, unitLen, spearman)
-		if !math.IsNaN(rsur) && math.Abs(rsur) >= math.Abs(r)-1e-12 {
-			b++
-		}
+		out[s] = ep.surrR(terms, unitLen, spearman)
 	}
-	return stats.PermP(b, ep.a.Surrogates)
+	return out, nil
 }
 
 // surrR is a surrogate's r from its terms, made as the observed r is: the

@@ -18,7 +18,9 @@ func (ep *envPlan) compute(ctx context.Context, p *Plan, seg int, span [2]int) (
 	a := ep.a
 	n := len(ep.chans)
 	var za, zb [][]complex128
-	convs := map[int]*spectral.Convolver{}
+	// Overlap-save blocks for a chunk, one transform for a short trial
+	// (spectral.BandFilter).
+	filter := p.bank.NewBandFilter()
 	// A streamed recording: the unit's span with its margins, read once
 	// for every channel it uses; x then stands for the whole channel, of
 	// which only [off, off+len(block)) is there.
@@ -38,25 +40,12 @@ func (ep *envPlan) compute(ctx context.Context, p *Plan, seg int, span [2]int) (
 	}
 	band := func(ch int, freqs []int) []complex128 {
 		if held != nil {
-			x := held[ch]
-			c := convs[0]
-			if c == nil {
-				c = p.bank.NewConvolver(spectral.GoodSize(len(x) + 2*ep.src.margin))
-				convs[0] = c
-			}
-			c.Load(x)
-			return connect.BandSignal(nil, c, freqs, span[0]-off, span[1]-off)
+			// the same crop as below, read from the file
+			return filter.Band(nil, freqs, held[ch], span[0]-off, span[1]-off)
 		}
 		x := ep.src.samples(seg, ch)
 		lo, hi := spectral.Crop(len(x), span[0], span[1], ep.src.margin)
-		nfft := spectral.GoodSize(hi - lo + 2*ep.src.margin)
-		c := convs[nfft]
-		if c == nil {
-			c = p.bank.NewConvolver(nfft)
-			convs[nfft] = c
-		}
-		c.Load(x[lo:hi])
-		return connect.BandSignal(nil, c, freqs, span[0]-lo, span[1]-lo)
+		return filter.Band(nil, freqs, x[lo:hi], span[0]-lo, span[1]-lo)
 	}
 	if ep.como {
 		// One series per frequency on the first (seed) and last (target) channel.
@@ -86,7 +75,7 @@ func (ep *envPlan) compute(ctx context.Context, p *Plan, seg int, span [2]int) (
 			return nil, err
 		}
 	}
-	// Binned envelopes (connect.Envelope, connect.OrthEnvelope).
+	// Binned envelopes (connect.Envelope, connect.OrthEnvelopes).
 	series := make([][]float64, ep.nSeries+len(ep.chans)*(len(ep.chans)-1))
 	for i, z := range za {
 		series[i] = connect.Envelope(nil, z, ep.bin, nil, ep.kind)
@@ -95,17 +84,9 @@ func (ep *envPlan) compute(ctx context.Context, p *Plan, seg int, span [2]int) (
 		series[n+i] = connect.Envelope(nil, z, ep.bin, nil, ep.kind)
 	}
 	if a.Orthogonalize == OrthPairwise {
-		// |Y⊥X| = |Im(y·ū)| with the unit phasors u = x/|x|, so each
-		// channel's phasors are computed once.
-		var u []complex128
-		for i := range n {
-			u = connect.UnitPhasors(u, za[i])
-			for j := range n {
-				if i != j {
-					series[ep.orthSeries(i, j)] = connect.OrthEnvelope(nil, u, za[j], ep.bin, nil, ep.kind)
-				}
-			}
-		}
+		// Every ordered pair at once, blocked by time (series[ep.orthSeries(i,
+		// j)] is series[n+connect.OrthIndex(n, i, j)]).
+		connect.OrthEnvelopes(series[n:n+n*(n-1)], za, ep.bin, nil, ep.kind, nil)
 	}
 	out := make([]float64, 0, 6*len(ep.terms))
 	for _, t := range ep.terms {

@@ -39,7 +39,9 @@ type Plan struct {
 	freqs    []float64
 	cycles   []float64
 	bank     *spectral.Bank
+	forms    *connect.Forms // window powers' quadratic forms, shared by all units
 	units    []unit
+	later    []laterUnit // units that read the units' results (see Later)
 	finish   []finisher
 	warnings []string
 }
@@ -51,6 +53,13 @@ type unit struct {
 	keys  map[string]int // span key → index in spans
 	// compute fills Values; set for kinds other than windows.
 	compute func(ctx context.Context, p *Plan) ([]float64, error)
+}
+
+// laterUnit is a unit of the second stage: it reads the first stage's
+// results through l.
+type laterUnit struct {
+	Unit
+	compute func(ctx context.Context, l *Later) ([]float64, error)
 }
 
 type finisher interface {
@@ -93,6 +102,7 @@ func NewPlan(r *Recipe, ds *Dataset) (*Plan, error) {
 		return nil, ferr("spectral.high", "%g Hz is at or above the Nyquist frequency %g Hz of %s", sp.High, nyq, ds.Name)
 	}
 	p.freqs = freqs
+	p.forms = connect.NewForms(sp.WindowTolerance())
 	p.cycles = spectral.Cycles(len(freqs), sp.Cycles[0], sp.Cycles[1])
 	// No wavelet may be longer than the data: checked before any kernel is
 	// built, so a tiny file claiming an absurd rate allocates nothing.
@@ -133,7 +143,99 @@ func NewPlan(r *Recipe, ds *Dataset) (*Plan, error) {
 		}
 		p.finish = append(p.finish, f)
 	}
+	for k := range p.later {
+		p.later[k].ID = len(p.units) + k
+	}
 	return p, nil
+}
+
+// LaterUnits lists the units that need every unit's result before they can
+// run (the surrogates of envelope rows), numbered after Units:
+// len(Units()) … len(Units())+len(LaterUnits())−1. They compute through
+// Later.
+func (p *Plan) LaterUnits() []Unit {
+	out := make([]Unit, len(p.later))
+	for i, u := range p.later {
+		out[i] = u.Unit
+	}
+	return out
+}
+
+// Later is the second stage of a plan: what its later units read, the
+// first stage's results, with each envelope analysis's series gathered once
+// on first use. Its Compute is safe for concurrent use.
+type Later struct {
+	p   *Plan
+	res []UnitResult // by unit ID
+	mu  sync.Mutex
+	env map[*envPlan]*envOnce
+}
+
+type envOnce struct {
+	once sync.Once
+	d    *envData
+}
+
+// Later checks the results of every unit of Units (in any order) and
+// returns the second stage that reads them.
+func (p *Plan) Later(res []UnitResult) (*Later, error) {
+	sorted, err := sortResults(res, len(p.units))
+	if err != nil {
+		return nil, err
+	}
+	return &Later{p: p, res: sorted, env: map[*envPlan]*envOnce{}}, nil
+}
+
+// Compute runs later unit id (numbered as LaterUnits numbers it).
+func (l *Later) Compute(ctx context.Context, id int) (UnitResult, error) {
+	k := id - len(l.p.units)
+	if k < 0 || k >= len(l.p.later) {
+		return UnitResult{}, fmt.Errorf("analysis: no later unit %d", id)
+	}
+	vals, err := l.p.later[k].compute(ctx, l)
+	if err != nil {
+		return UnitResult{}, err
+	}
+	return UnitResult{ID: id, Values: vals}, nil
+}
+
+// ComputeAll computes every later unit on the given number of goroutines.
+func (l *Later) ComputeAll(ctx context.Context, workers int, progress func(done, total int)) ([]UnitResult, error) {
+	n0 := len(l.p.units)
+	res, err := ComputeUnits(ctx, len(l.p.later), workers, func(ctx context.Context, k int) (UnitResult, error) {
+		return l.Compute(ctx, n0+k)
+	}, progress)
+	return res, err
+}
+
+func (l *Later) envData(ep *envPlan) *envData {
+	l.mu.Lock()
+	o := l.env[ep]
+	if o == nil {
+		o = &envOnce{}
+		l.env[ep] = o
+	}
+	l.mu.Unlock()
+	o.once.Do(func() { o.d = ep.gather(l.res) })
+	return o.d
+}
+
+// sortResults orders res by unit ID, checking that IDs 0 … n−1 each come
+// once.
+func sortResults(res []UnitResult, n int) ([]UnitResult, error) {
+	if len(res) != n {
+		return nil, fmt.Errorf("analysis: %d unit results for %d units", len(res), n)
+	}
+	sorted := make([]UnitResult, n)
+	seen := make([]bool, n)
+	for _, r := range res {
+		if r.ID < 0 || r.ID >= n || seen[r.ID] {
+			return nil, fmt.Errorf("analysis: unit result %d is out of range or repeated", r.ID)
+		}
+		seen[r.ID] = true
+		sorted[r.ID] = r
+	}
+	return sorted, nil
 }
 
 func (p *Plan) epochs(path, what string) (*data.Epochs, error) {
@@ -249,7 +351,7 @@ func (p *Plan) Compute(ctx context.Context, id int) (UnitResult, error) {
 	if u.compute != nil {
 		vals, err = u.compute(ctx, p)
 	} else {
-		vals, err = connect.WindowPower(ctx, nil, p.bank, p.ds.Epochs, u.ch, u.spans)
+		vals, err = connect.WindowPower(ctx, nil, p.bank, p.forms, p.ds.Epochs, u.ch, u.spans)
 	}
 	if err != nil {
 		return UnitResult{}, err
@@ -258,19 +360,25 @@ func (p *Plan) Compute(ctx context.Context, id int) (UnitResult, error) {
 }
 
 // Finish turns unit results into the results table and maps. Figures are
-// drawn from its results afterwards, by core/figures.
+// drawn from its results afterwards, by core/figures. res holds every
+// unit's result and, optionally, every later unit's; Finish computes the
+// later units itself when they are missing (on up to GOMAXPROCS
+// goroutines), with the same results.
 func (p *Plan) Finish(ctx context.Context, res []UnitResult) (*report.Results, error) {
-	if len(res) != len(p.units) {
-		return nil, fmt.Errorf("analysis: %d unit results for %d units", len(res), len(p.units))
-	}
-	sorted := make([]UnitResult, len(res))
-	seen := make([]bool, len(res))
-	for _, r := range res {
-		if r.ID < 0 || r.ID >= len(res) || seen[r.ID] {
-			return nil, fmt.Errorf("analysis: unit result %d is out of range or repeated", r.ID)
+	if len(res) == len(p.units) && len(p.later) > 0 {
+		l, err := p.Later(res)
+		if err != nil {
+			return nil, err
 		}
-		seen[r.ID] = true
-		sorted[r.ID] = r
+		lr, err := l.ComputeAll(ctx, runtime.GOMAXPROCS(0), nil)
+		if err != nil {
+			return nil, err
+		}
+		res = append(l.res, lr...)
+	}
+	sorted, err := sortResults(res, len(p.units)+len(p.later))
+	if err != nil {
+		return nil, err
 	}
 	out := &report.Results{Recipe: p.r.JSON()}
 	out.Warnings = append(out.Warnings, p.ds.Notes...)
@@ -314,9 +422,32 @@ func RunPlan(ctx context.Context, p Runner, progress func(done, total int)) (*re
 	return p.Finish(ctx, res)
 }
 
-// ComputeAll computes every unit on the given number of goroutines.
+// ComputeAll computes every unit, then every later unit, on the given
+// number of goroutines; progress counts both.
 func (p *Plan) ComputeAll(ctx context.Context, workers int, progress func(done, total int)) ([]UnitResult, error) {
-	return ComputeUnits(ctx, len(p.units), workers, p.Compute, progress)
+	n, nl := len(p.units), len(p.later)
+	first, err := ComputeUnits(ctx, n, workers, p.Compute, stage(progress, 0, n+nl))
+	if err != nil || nl == 0 {
+		return first, err
+	}
+	l, err := p.Later(first)
+	if err != nil {
+		return nil, err
+	}
+	lr, err := l.ComputeAll(ctx, workers, stage(progress, n, n+nl))
+	if err != nil {
+		return nil, err
+	}
+	return append(first, lr...), nil
+}
+
+// stage reports a stage's progress as part of total, after the done units
+// of the stages before it.
+func stage(progress func(done, total int), before, total int) func(done, total int) {
+	if progress == nil {
+		return nil
+	}
+	return func(done, _ int) { progress(before+done, total) }
 }
 
 // ComputeUnits computes units 0 … n−1 with compute on up to workers

@@ -61,3 +61,29 @@ func BenchmarkDemoWindowPower(b *testing.B) {
 		}
 	}
 }
+
+// BenchmarkDemoFinish times combining the whole demo recipe's units into
+// rows, maps and figures (pipeline.Plan.Finish) on one goroutine: what the
+// page's worker 0 does after the units come back. The units are computed
+// once outside the timer.
+func BenchmarkDemoFinish(b *testing.B) {
+	r, err := recipe.Parse(Recipe())
+	if err != nil {
+		b.Fatal(err)
+	}
+	p, err := pipeline.NewPlan(r, &dataset.Dataset{Name: "demo", Recording: Recording(), Epochs: Epochs()})
+	if err != nil {
+		b.Fatal(err)
+	}
+	ctx := context.Background()
+	res, err := p.ComputeAll(ctx, 2, nil)
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.ResetTimer()
+	for range b.N {
+		if _, err := p.Finish(ctx, res); err != nil {
+			b.Fatal(err)
+		}
+	}
+}

@@ -36,6 +36,26 @@ type Spectral struct {
 	Steps   int        `json:"steps"`   // number of frequencies; default 30
 	Spacing string     `json:"spacing"` // "log" (default) or "linear"
 	Cycles  [2]float64 `json:"cycles"`  // cycles at the lowest and highest frequency; default [3, 10]
+	// Tolerance is the largest relative error allowed in a trial-window
+	// power when it is computed through the window's quadratic form instead
+	// of by FFT convolution; 0 asks for the FFT route everywhere. Absent
+	// (nil) means the default, 1e-10 (see WindowTolerance).
+	Tolerance *float64 `json:"tolerance,omitempty"`
+}
+
+// DefaultTolerance is spectral.tolerance when a recipe does not give it.
+const DefaultTolerance = 1e-10
+
+// MaxTolerance is the largest spectral.tolerance a recipe may give.
+const MaxTolerance = 1e-3
+
+// WindowTolerance returns spectral.tolerance, or DefaultTolerance when the
+// recipe does not give it.
+func (s Spectral) WindowTolerance() float64 {
+	if s.Tolerance == nil {
+		return DefaultTolerance
+	}
+	return *s.Tolerance
 }
 
 // Window is a time-frequency window on one or more channels.
@@ -284,7 +304,17 @@ func parseSpectral(v any, s *Spectral) error {
 			}
 		}
 	}
-	return o.done("method", "low", "high", "steps", "spacing", "cycles")
+	if v, ok := o.get("tolerance"); ok {
+		f, err := number("spectral.tolerance", v)
+		if err != nil {
+			return err
+		}
+		if f < 0 || f > MaxTolerance {
+			return ferr("spectral.tolerance", "%g is outside 0–%g (a relative error; 0 computes every window power by FFT)", f, MaxTolerance)
+		}
+		s.Tolerance = &f
+	}
+	return o.done("method", "low", "high", "steps", "spacing", "cycles", "tolerance")
 }
 
 func parseWindow(path string, v any) (*Window, error) {

@@ -66,6 +66,38 @@ func TestParseDefaults(t *testing.T) {
 	if len(a.Target.Channel) != 2 {
 		t.Errorf("target channels %v", a.Target.Channel)
 	}
+	if r.Spectral.Tolerance != nil || r.Spectral.WindowTolerance() != 1e-10 {
+		t.Errorf("tolerance %v (%g), want absent and 1e-10", r.Spectral.Tolerance, r.Spectral.WindowTolerance())
+	}
+	// An absent tolerance stays out of the resolved recipe, so recipes and
+	// their outputs from before the key are unchanged.
+	if strings.Contains(string(r.JSON()), "tolerance") {
+		t.Errorf("resolved recipe names a tolerance it was not given:\n%s", r.JSON())
+	}
+}
+
+// spectral.tolerance is kept as given, 0 included (the FFT route
+// everywhere), and written back into the resolved recipe.
+func TestParseTolerance(t *testing.T) {
+	for _, c := range []struct {
+		in   string
+		want float64
+	}{{"0", 0}, {"1e-8", 1e-8}, {"0.001", 1e-3}} {
+		r, err := Parse([]byte(`{"spectral":{"tolerance":` + c.in + `},"analyses":[{"type":"trial-window","seed":{"channel":"A","time":[0,1],"freq":[4,8]},"target":{"channel":"B","time":[0,1],"freq":[4,8]}}]}`))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got := r.Spectral.WindowTolerance(); got != c.want || r.Spectral.Tolerance == nil {
+			t.Errorf("%s: tolerance %g, want %g", c.in, got, c.want)
+		}
+		r2, err := Parse(r.JSON())
+		if err != nil {
+			t.Fatal(err)
+		}
+		if r2.Spectral.WindowTolerance() != c.want {
+			t.Errorf("%s: after a round trip %g", c.in, r2.Spectral.WindowTolerance())
+		}
+	}
 }
 
 func TestParseErrors(t *testing.T) {
@@ -97,6 +129,9 @@ func TestParseErrors(t *testing.T) {
 		{"channel twice", `{"analyses":[{"type":"trial-window","seed":{"channel":["A","A"],"time":[0,1],"freq":[4,8]},"target":{"channel":"B","time":[0,1],"freq":[4,8]}}]}`, `analyses[0].seed.channel[1]: channel "A" is listed twice`},
 		{"bad spacing", `{"spectral":{"spacing":"octave"},"analyses":[{"type":"trial-window",` + win + `}]}`, `spectral.spacing: "octave" is not a spacing`},
 		{"low zero", `{"spectral":{"low":0},"analyses":[{"type":"trial-window",` + win + `}]}`, "spectral.low: must be above 0 Hz"},
+		{"tolerance negative", `{"spectral":{"tolerance":-1e-9},"analyses":[{"type":"trial-window",` + win + `}]}`, "spectral.tolerance: -1e-09 is outside 0–0.001"},
+		{"tolerance too loose", `{"spectral":{"tolerance":0.5},"analyses":[{"type":"trial-window",` + win + `}]}`, "spectral.tolerance: 0.5 is outside 0–0.001"},
+		{"tolerance text", `{"spectral":{"tolerance":"tight"},"analyses":[{"type":"trial-window",` + win + `}]}`, "spectral.tolerance: must be a number"},
 		{"steps fraction", `{"spectral":{"steps":2.5},"analyses":[{"type":"trial-window",` + win + `}]}`, "spectral.steps: must be a whole number"},
 		{"cluster on window", `{"analyses":[{"type":"trial-window","correction":"cluster",` + win + `}]}`, `analyses[0].correction: "cluster" applies to tf-map analyses only`},
 		{"bad correction", `{"analyses":[{"type":"trial-window","correction":"holm",` + win + `}]}`, `analyses[0].correction: "holm" is not a correction`},

@@ -87,9 +87,101 @@ func (r *Row) Groupable() bool {
 // groupTest collects one test's Fisher z values over recordings.
 type groupTest struct {
 	id    TestID
-	recs  []string  // recordings with a finite r, in row order
+	recs  []int32   // recordings with a finite r (Pooler.names), in row order
 	z     []float64 // atanh r, clamped, aligned with recs
-	undef []string  // recordings whose r is undefined
+	undef []int32   // recordings whose r is undefined
+
+	// The check for a test given twice in one recording: rows of every
+	// recording seen so far, which is only looked up (and only built) when
+	// a row's recording is not newer than every recording the test has.
+	maxRec int32
+	rows   []seenRow
+	byRec  map[int32]int
+}
+
+type seenRow struct {
+	rec int32
+	row int // 1-based row number
+}
+
+// Pooler collects per-recording rows one at a time, so that a caller can
+// pool rows it never holds all at once (amplink merge reads one table at a
+// time). Rows then gives the rows GroupRows gives for the same rows in the
+// same order. It keeps, per test, the recordings and their z values.
+type Pooler struct {
+	tests    []*groupTest
+	index    map[TestID]int   // test → position in tests
+	recIndex map[string]int32 // recording → position in names
+	names    []string         // recordings, in order of their first groupable row
+	method   map[string]string
+	n        int // rows added
+	err      error
+}
+
+// NewPooler returns an empty Pooler.
+func NewPooler() *Pooler {
+	return &Pooler{index: map[TestID]int{}, recIndex: map[string]int32{}, method: map[string]string{}}
+}
+
+// Add adds the next row. Rows that are not Groupable only count, so that
+// error messages number rows as GroupRows does. The first error (a
+// groupable row without a recording, the same test twice in one recording,
+// an r outside [−1, 1]) is kept, later rows are ignored, and Rows returns it.
+func (p *Pooler) Add(row *Row) {
+	p.n++
+	if p.err != nil || !row.Groupable() {
+		return
+	}
+	id := row.ID()
+	rec, ok := row.Lookup("recording")
+	if !ok || rec == "" {
+		p.err = fmt.Errorf("group: row %d (%s): no recording", p.n, id)
+		return
+	}
+	if _, seen := p.method[row.Analysis]; !seen {
+		c, _ := row.Lookup("correction")
+		p.method[row.Analysis] = strings.ToLower(c)
+	}
+	ti, ok := p.index[id]
+	if !ok {
+		ti = len(p.tests)
+		p.index[id] = ti
+		p.tests = append(p.tests, &groupTest{id: id, maxRec: -1})
+	}
+	gt := p.tests[ti]
+	ri, ok := p.recIndex[rec]
+	if !ok {
+		ri = int32(len(p.names))
+		p.recIndex[rec] = ri
+		p.names = append(p.names, rec)
+	}
+	if ri <= gt.maxRec {
+		if gt.byRec == nil {
+			gt.byRec = make(map[int32]int, len(gt.rows))
+			for _, s := range gt.rows {
+				gt.byRec[s.rec] = s.row
+			}
+		}
+		if prev, dup := gt.byRec[ri]; dup {
+			p.err = fmt.Errorf("group: recording %q has test %s twice (rows %d and %d)", rec, id, prev, p.n)
+			return
+		}
+	}
+	gt.maxRec = max(gt.maxRec, ri)
+	gt.rows = append(gt.rows, seenRow{ri, p.n})
+	if gt.byRec != nil {
+		gt.byRec[ri] = p.n
+	}
+	r := row.R
+	switch {
+	case math.IsNaN(r) || math.IsInf(r, 0):
+		gt.undef = append(gt.undef, ri)
+	case math.Abs(r) > 1:
+		p.err = fmt.Errorf("group: recording %q, test %s: r = %v is outside [-1, 1]", rec, id, r)
+	default:
+		gt.recs = append(gt.recs, ri)
+		gt.z = append(gt.z, math.Atanh(math.Max(-zClamp, math.Min(zClamp, r))))
+	}
 }
 
 // GroupRows pools per-recording rows into group-level rows. rows come from
@@ -129,56 +221,27 @@ func GroupRows(rows []Row, groups map[string]string, level float64) ([]Row, erro
 	if !(level > 0 && level < 1) {
 		return nil, fmt.Errorf("group: level %v is not in (0, 1)", level)
 	}
-	var tests []*groupTest
-	index := map[TestID]int{} // test → position in tests
-	type seenKey struct {
-		test int
-		rec  string
-	}
-	seen := map[seenKey]int{} // (test, recording) → 1-based row
-	var recOrder []string
-	recSeen := map[string]bool{}
+	p := NewPooler()
 	for i := range rows {
-		row := &rows[i]
-		if !row.Groupable() {
-			continue
-		}
-		id := row.ID()
-		rec, ok := row.Lookup("recording")
-		if !ok || rec == "" {
-			return nil, fmt.Errorf("group: row %d (%s): no recording", i+1, id)
-		}
-		ti, ok := index[id]
-		if !ok {
-			ti = len(tests)
-			index[id] = ti
-			tests = append(tests, &groupTest{id: id})
-		}
-		gt := tests[ti]
-		key := seenKey{ti, rec}
-		if prev, dup := seen[key]; dup {
-			return nil, fmt.Errorf("group: recording %q has test %s twice (rows %d and %d)", rec, id, prev, i+1)
-		}
-		seen[key] = i + 1
-		if !recSeen[rec] {
-			recSeen[rec] = true
-			recOrder = append(recOrder, rec)
-		}
-		r := row.R
-		switch {
-		case math.IsNaN(r) || math.IsInf(r, 0):
-			gt.undef = append(gt.undef, rec)
-		case math.Abs(r) > 1:
-			return nil, fmt.Errorf("group: recording %q, test %s: r = %v is outside [-1, 1]", rec, id, r)
-		default:
-			gt.recs = append(gt.recs, rec)
-			gt.z = append(gt.z, math.Atanh(math.Max(-zClamp, math.Min(zClamp, r))))
-		}
+		p.Add(&rows[i])
+	}
+	return p.Rows(groups, level)
+}
+
+// Rows returns the group rows of the rows added so far, as GroupRows does,
+// or the first error Add met.
+func (p *Pooler) Rows(groups map[string]string, level float64) ([]Row, error) {
+	if !(level > 0 && level < 1) {
+		return nil, fmt.Errorf("group: level %v is not in (0, 1)", level)
+	}
+	if p.err != nil {
+		return nil, p.err
 	}
 	var labels []string
+	var recGroup []int // recording → 0 or 1
 	if len(groups) > 0 {
 		set := map[string]bool{}
-		for _, rec := range recOrder {
+		for _, rec := range p.names {
 			l, ok := groups[rec]
 			if !ok {
 				return nil, fmt.Errorf("group: recording %q has no group", rec)
@@ -192,9 +255,13 @@ func GroupRows(rows []Row, groups map[string]string, level float64) ([]Row, erro
 		if len(labels) != 2 {
 			return nil, fmt.Errorf("group: need exactly two group labels, found %d: %s", len(labels), quoteList(labels))
 		}
+		recGroup = make([]int, len(p.names))
+		for i, rec := range p.names {
+			recGroup[i] = labelIndex(labels, groups[rec])
+		}
 	}
 	var out []Row
-	for _, gt := range tests {
+	for _, gt := range p.tests {
 		out = append(out, pooledRow(gt, gt.z, len(gt.undef), GroupRecording, "", level))
 		if labels == nil {
 			continue
@@ -202,18 +269,18 @@ func GroupRows(rows []Row, groups map[string]string, level float64) ([]Row, erro
 		var zs [2][]float64
 		var undef [2]int
 		for i, rec := range gt.recs {
-			g := labelIndex(labels, groups[rec])
+			g := recGroup[rec]
 			zs[g] = append(zs[g], gt.z[i])
 		}
 		for _, rec := range gt.undef {
-			undef[labelIndex(labels, groups[rec])]++
+			undef[recGroup[rec]]++
 		}
 		for g := range 2 {
 			out = append(out, pooledRow(gt, zs[g], undef[g], GroupPrefix+labels[g], labels[g], level))
 		}
 		out = append(out, diffRow(gt, labels, zs, undef))
 	}
-	correctGroupRows(rows, out)
+	correctGroupRows(p.method, out)
 	return out, nil
 }
 

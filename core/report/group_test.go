@@ -290,6 +290,9 @@ func TestGroupRowsErrors(t *testing.T) {
 			"group: row 1 (a envelope X→Y pearson): no recording"},
 		{"twice", append(append([]Row(nil), ok...), recRow("a", "envelope", "X", "Y", "2.edf", 0.5)), nil, 0.95,
 			`group: recording "2.edf" has test a envelope X→Y spearman twice (rows 2 and 4)`},
+		{"twice, recordings out of order", []Row{recRow("a", "envelope", "X", "B", "2.edf", 0.1), recRow("a", "envelope", "X", "A", "1.edf", 0.2),
+			recRow("a", "envelope", "X", "A", "2.edf", 0.3), recRow("a", "envelope", "X", "B", "1.edf", 0.4), recRow("a", "envelope", "X", "B", "2.edf", 0.5)}, nil, 0.95,
+			`group: recording "2.edf" has test a envelope X→B spearman twice (rows 1 and 5)`},
 		{"r out of range", []Row{recRow("a", "envelope", "X", "Y", "1.edf", 1.5)}, nil, 0.95,
 			`group: recording "1.edf", test a envelope X→Y spearman: r = 1.5 is outside [-1, 1]`},
 		{"no group", ok, map[string]string{"1.edf": "a", "2.edf": "b"}, 0.95, `group: recording "3.edf" has no group`},
@@ -305,6 +308,31 @@ func TestGroupRowsErrors(t *testing.T) {
 				t.Errorf("error %v, want %q", err, tc.want)
 			}
 		})
+	}
+}
+
+// TestGroupRowsInterleaved gives the rows test by test, so that each test
+// meets recordings that are not new overall: no test is taken for given
+// twice, and each pools all of its recordings.
+func TestGroupRowsInterleaved(t *testing.T) {
+	var rows []Row
+	for k, tgt := range []string{"A", "B", "C"} {
+		for i := range 5 {
+			rec := strconv.Itoa((i*3+k)%5) + ".edf"
+			rows = append(rows, recRow("a", "envelope", "X", tgt, rec, 0.1*float64(i)))
+		}
+	}
+	out, err := GroupRows(rows, nil, 0.95)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(out) != 3 {
+		t.Fatalf("%d group rows, want 3", len(out))
+	}
+	for _, r := range out {
+		if r.N != 5 {
+			t.Errorf("%s pools %d recordings, want 5", r.ID(), r.N)
+		}
 	}
 }
 

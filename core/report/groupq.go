@@ -1,31 +1,17 @@
 package report
 
-import (
-	"strings"
-
-	"amplink/core/stats"
-)
+import "amplink/core/stats"
 
 // correctGroupRows adds q and correction to the group rows of each analysis
 // whose per-recording rows name a correction ("fdr": Benjamini & Hochberg
-// 1995, stats.BH; "bonferroni": stats.Bonferroni). Each analysis has up to
+// 1995, stats.BH; "bonferroni": stats.Bonferroni); method maps an analysis
+// to the correction its first groupable row names, lower-cased. Each analysis has up to
 // four families of group rows, each corrected on its own: the rows pooled
 // over every recording ("group"), those of each group ("group:A",
 // "group:B") and the difference rows ("group:A-B"). Rows with an undefined
 // p get an empty q and do not count in m. Analyses with no correction
 // ("none", or none named) get no q.
-func correctGroupRows(rows, out []Row) {
-	method := map[string]string{} // analysis → correction of its recordings' rows
-	for i := range rows {
-		r := &rows[i]
-		if !r.Groupable() {
-			continue
-		}
-		if _, seen := method[r.Analysis]; !seen {
-			c, _ := r.Lookup("correction")
-			method[r.Analysis] = strings.ToLower(c)
-		}
-	}
+func correctGroupRows(method map[string]string, out []Row) {
 	type family struct{ analysis, rec string }
 	var order []family
 	members := map[family][]int{}

@@ -57,3 +57,12 @@ type Results struct {
 	Warnings []string
 	Recipe   []byte // the resolved recipe as JSON
 }
+
+// ExtraNames returns the names of the row's extra fields, in order.
+func (r *Row) ExtraNames() []string {
+	names := make([]string, len(r.Extra))
+	for i, f := range r.Extra {
+		names[i] = f.Name
+	}
+	return names
+}

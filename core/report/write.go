@@ -87,18 +87,116 @@ func (res *Results) Table() (header []string, rows [][]string) {
 // A cell a spreadsheet would run as a formula gets a leading apostrophe
 // (QuoteCell); numbers are written as they are.
 func WriteCSV(w io.Writer, res *Results) error {
-	cw := csv.NewWriter(w)
-	header, rows := res.Table()
-	if err := cw.Write(quoteCells(header)); err != nil {
+	tw, err := NewTableWriter(w, res.Columns())
+	if err != nil {
 		return err
 	}
-	for _, r := range rows {
-		if err := cw.Write(quoteCells(r)); err != nil {
+	for i := range res.Rows {
+		if err := tw.Write(&res.Rows[i]); err != nil {
 			return err
 		}
 	}
-	cw.Flush()
-	return cw.Error()
+	return tw.Flush()
+}
+
+// TableWriter writes a results table a row at a time, for tables too large
+// to hold: the header is given first (Results.Columns of every row to
+// come), and the bytes are those WriteCSV writes for the same rows.
+type TableWriter struct {
+	cw    *csv.Writer
+	cols  []string
+	cells []string
+	// The positions in cols of the last row's extra fields (−1: not a
+	// column, or a repeated name), reused while rows share their field
+	// names, as the rows of one table read back do.
+	names []string
+	pos   []int
+	extra map[string]int // extra column → position in cols
+}
+
+// NewTableWriter writes the header cols to w and returns the writer of
+// the rows.
+func NewTableWriter(w io.Writer, cols []string) (*TableWriter, error) {
+	tw := &TableWriter{cw: csv.NewWriter(w), cols: cols, cells: make([]string, len(cols)), extra: map[string]int{}}
+	for i, c := range cols {
+		switch c {
+		case "analysis", "type", "seed", "target", "method", "n", "r", "p":
+		default:
+			if _, dup := tw.extra[c]; !dup {
+				tw.extra[c] = i
+			}
+		}
+	}
+	if err := tw.cw.Write(quoteCells(cols)); err != nil {
+		return nil, err
+	}
+	return tw, nil
+}
+
+// Write writes one row's cells (Row.Cells of the header's columns).
+func (tw *TableWriter) Write(r *Row) error {
+	if !tw.sameNames(r.Extra) {
+		tw.names = tw.names[:0]
+		tw.pos = tw.pos[:0]
+		taken := map[int]bool{}
+		for _, f := range r.Extra {
+			i, ok := tw.extra[f.Name]
+			if !ok || taken[i] {
+				i = -1 // not a column, or a later field of the same name
+			} else {
+				taken[i] = true
+			}
+			tw.names = append(tw.names, f.Name)
+			tw.pos = append(tw.pos, i)
+		}
+	}
+	for i := range tw.cells {
+		tw.cells[i] = ""
+	}
+	for i, c := range tw.cols {
+		switch c {
+		case "analysis":
+			tw.cells[i] = r.Analysis
+		case "type":
+			tw.cells[i] = r.Type
+		case "seed":
+			tw.cells[i] = r.Seed
+		case "target":
+			tw.cells[i] = r.Target
+		case "method":
+			tw.cells[i] = r.Method
+		case "n":
+			tw.cells[i] = strconv.Itoa(r.N)
+		case "r":
+			tw.cells[i] = Num(r.R)
+		case "p":
+			tw.cells[i] = Num(r.P)
+		}
+	}
+	for k, f := range r.Extra {
+		if i := tw.pos[k]; i >= 0 {
+			tw.cells[i] = f.Value
+		}
+	}
+	return tw.cw.Write(quoteCells(tw.cells))
+}
+
+func (tw *TableWriter) sameNames(extra []Field) bool {
+	if len(extra) != len(tw.names) || tw.pos == nil {
+		return false
+	}
+	for k, f := range extra {
+		if f.Name != tw.names[k] {
+			return false
+		}
+	}
+	return true
+}
+
+// Flush writes what is buffered and returns the first error of any write.
+func (tw *TableWriter) Flush() error {
+	tw.cw.Flush()
+	return tw.cw.Error()
 }
 
 // WriteMapCSV writes one map: a header of column labels after the row-axis
@@ -145,6 +243,36 @@ func WriteJSON(w io.Writer, res *Results) error {
 	if out.Warnings == nil {
 		out.Warnings = []string{}
 	}
+	for _, m := range res.Maps {
+		out.Maps = append(out.Maps, m.Name)
+	}
+	for _, f := range res.Figures {
+		out.Figures = append(out.Figures, map[string]string{"name": f.Name, "title": f.Title})
+	}
+	if len(res.Recipe) > 0 && json.Valid(res.Recipe) {
+		out.Recipe = json.RawMessage(res.Recipe)
+	}
+	var doc bytes.Buffer
+	enc := json.NewEncoder(&doc)
+	enc.SetIndent("", "  ")
+	if err := enc.Encode(out); err != nil {
+		return err
+	}
+	// The rows are written here, indented as the encoder would indent
+	// them, into the place of the empty list: re-scanning every row's bytes
+	// twice (compacting, then indenting) was most of the time this took.
+	// JSON text never holds a raw newline inside a string, so the first
+	// "\n  \"rows\": []" is the field.
+	text := doc.Bytes()
+	at := bytes.Index(text, []byte("\n  \"rows\": []"))
+	if len(cells) == 0 || at < 0 {
+		_, err := w.Write(text)
+		return err
+	}
+	at += len("\n  \"rows\": [")
+	if _, err := w.Write(text[:at]); err != nil {
+		return err
+	}
 	// Each row is an object whose keys come in name order (as encoding/json
 	// writes a map), written directly rather than through a map per row.
 	last := map[string]int{}
@@ -156,42 +284,64 @@ func WriteJSON(w io.Writer, res *Results) error {
 		keys = append(keys, c)
 	}
 	sort.Strings(keys)
-	quoted := make([][]byte, len(keys))
+	prefix := make([][]byte, len(keys)) // ",\n      \"key\": " (no comma for the first)
+	col := make([]int, len(keys))
+	text2 := make([]bool, len(keys)) // always a string
 	for k, c := range keys {
-		quoted[k], _ = json.Marshal(c)
+		q, _ := json.Marshal(c)
+		if k > 0 {
+			prefix[k] = append(prefix[k], ',')
+		}
+		prefix[k] = append(append(append(prefix[k], "\n      "...), q...), ": "...)
+		col[k] = last[c]
+		text2[k] = c == "seed" || c == "target" || c == "analysis" || c == "recording"
 	}
-	var b []byte
-	for _, row := range cells {
-		b = append(b[:0], '{')
-		for k, c := range keys {
-			if k > 0 {
-				b = append(b, ',')
-			}
-			b = append(append(b, quoted[k]...), ':')
-			v := row[last[c]]
+	b := make([]byte, 0, 64<<10)
+	for i, row := range cells {
+		if i > 0 {
+			b = append(b, ',')
+		}
+		b = append(b, "\n    {"...)
+		for k := range keys {
+			b = append(b, prefix[k]...)
+			v := row[col[k]]
 			switch {
 			case v == "":
 				b = append(b, "null"...)
-			case isJSONNumber(v) && c != "seed" && c != "target" && c != "analysis" && c != "recording":
+			case !text2[k] && isJSONNumber(v):
 				b = append(b, v...)
 			default:
-				q, _ := json.Marshal(v)
-				b = append(b, q...)
+				b = appendJSONString(b, v)
 			}
 		}
-		b = append(b, '}')
-		out.Rows = append(out.Rows, json.RawMessage(bytes.Clone(b)))
+		b = append(b, "\n    }"...)
+		if len(b) >= 32<<10 {
+			if _, err := w.Write(b); err != nil {
+				return err
+			}
+			b = b[:0]
+		}
 	}
-	for _, m := range res.Maps {
-		out.Maps = append(out.Maps, m.Name)
+	b = append(b, "\n  "...)
+	if _, err := w.Write(b); err != nil {
+		return err
 	}
-	for _, f := range res.Figures {
-		out.Figures = append(out.Figures, map[string]string{"name": f.Name, "title": f.Title})
+	_, err := w.Write(text[at:])
+	return err
+}
+
+// appendJSONString appends s quoted as json.Marshal quotes it: printable
+// ASCII other than the quote, the backslash and the three characters
+// json.Marshal escapes for HTML (<, >, &) goes as it is; anything else goes
+// through json.Marshal.
+func appendJSONString(b []byte, s string) []byte {
+	for i := 0; i < len(s); i++ {
+		if c := s[i]; c < 0x20 || c > 0x7e || c == '"' || c == '\\' || c == '<' || c == '>' || c == '&' {
+			q, _ := json.Marshal(s)
+			return append(b, q...)
+		}
 	}
-	if len(res.Recipe) > 0 && json.Valid(res.Recipe) {
-		out.Recipe = json.RawMessage(res.Recipe)
-	}
-	enc := json.NewEncoder(w)
-	enc.SetIndent("", "  ")
-	return enc.Encode(out)
+	b = append(b, '"')
+	b = append(b, s...)
+	return append(b, '"')
 }

@@ -10,6 +10,7 @@ import (
 	"os"
 	"path/filepath"
 	"slices"
+	"strings"
 	"testing"
 )
 
@@ -419,5 +420,46 @@ func TestIsJSONNumber(t *testing.T) {
 		if got := isJSONNumber(c.s); got != c.want {
 			t.Errorf("isJSONNumber(%q) = %v, want %v", c.s, got, c.want)
 		}
+	}
+}
+
+// TableWriter keeps each row's cells those of Row.Cells while consecutive
+// rows change their fields (another order, a field given twice, a field
+// that is not a column), so streamed tables equal WriteCSV's.
+func TestTableWriterCells(t *testing.T) {
+	rows := []Row{
+		{Analysis: "a", N: 3, R: 0.5, P: math.NaN(), Extra: []Field{{"x", "1"}, {"y", "=2"}}},
+		{Analysis: "a", N: 4, R: 0.25, P: 0.5, Extra: []Field{{"x", "3"}, {"y", "4"}}},
+		{Analysis: "b", Extra: []Field{{"y", "5"}, {"x", "6"}, {"x", "7"}}},
+		{Analysis: "c", Extra: []Field{{"z", "8"}, {"y", "9"}}},
+		{Analysis: "d"},
+		{Analysis: "e", Extra: []Field{{"x", "10"}}},
+	}
+	cols := []string{"analysis", "type", "seed", "target", "method", "n", "r", "p", "y", "x"}
+	var want bytes.Buffer
+	cw := csv.NewWriter(&want)
+	cw.Write(cols)
+	for i := range rows {
+		cw.Write(quoteCells(rows[i].Cells(cols)))
+	}
+	cw.Flush()
+	var got bytes.Buffer
+	tw, err := NewTableWriter(&got, cols)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i := range rows {
+		if err := tw.Write(&rows[i]); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if err := tw.Flush(); err != nil {
+		t.Fatal(err)
+	}
+	if got.String() != want.String() {
+		t.Errorf("got\n%s\nwant\n%s", got.String(), want.String())
+	}
+	if !strings.Contains(got.String(), "b,,,,,0,0,0,5,6\n") || !strings.Contains(got.String(), ",'=2,") {
+		t.Errorf("unexpected cells:\n%s", got.String())
 	}
 }

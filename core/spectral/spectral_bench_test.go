@@ -155,3 +155,91 @@ func BenchmarkStream(b *testing.B) {
 		b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N*n), "ns/sample")
 	})
 }
+
+// BenchmarkBandSignal is one channel's 8–12 Hz band signal over a 65 536-
+// sample envelope chunk at 1 kHz (40 log-spaced frequencies 2–60 Hz, 3→10
+// cycles, as in the 1-hour envelope workload): the one-transform route of
+// the envelope units before overlap-save (Load plus BandAnalytic on the
+// chunk's crop, FFT length GoodSize(crop + 2·half), 67 500 points here)
+// against BandBlocks at power-of-four block lengths and BandFilter's choice.
+// It reports ns per output sample.
+func BenchmarkBandSignal(b *testing.B) {
+	const rate, m = 1000.0, 1 << 16
+	f, err := Frequencies(2, 60, 40, "log")
+	if err != nil {
+		b.Fatal(err)
+	}
+	bank, err := NewBank(rate, f, Cycles(40, 3, 10))
+	if err != nil {
+		b.Fatal(err)
+	}
+	idx := bank.Within(8, 12)
+	h := bank.MaxHalf(idx)
+	x := randomSignal(m+2*h, 9)
+	from, to := h, m+h
+	per := func(b *testing.B) {
+		b.ReportMetric(b.Elapsed().Seconds()*1e9/float64(b.N)/m, "ns/sample")
+	}
+	nfft := GoodSize(len(x) + 2*h)
+	b.Run(fmt.Sprintf("oneshot/nfft=%d", nfft), func(b *testing.B) {
+		c := bank.NewConvolver(nfft)
+		c.Load(x)
+		dst := c.BandAnalytic(nil, idx, from, to)
+		b.ReportAllocs()
+		for b.Loop() {
+			c.Load(x)
+			dst = c.BandAnalytic(dst, idx, from, to)
+		}
+		per(b)
+	})
+	for _, nb := range []int{4096, 16384} {
+		b.Run(fmt.Sprintf("blocks/nfft=%d", nb), func(b *testing.B) {
+			s := bank.NewBandBlocks(idx, nb)
+			dst := s.Band(nil, x, from, to)
+			b.ReportAllocs()
+			for b.Loop() {
+				dst = s.Band(dst, x, from, to)
+			}
+			per(b)
+		})
+	}
+	b.Run(fmt.Sprintf("filter/nfft=%d", BandBlockLen(h, m)), func(b *testing.B) {
+		fl := bank.NewBandFilter()
+		dst := fl.Band(nil, idx, x, from, to)
+		b.ReportAllocs()
+		for b.Loop() {
+			dst = fl.Band(dst, idx, x, from, to)
+		}
+		per(b)
+	})
+}
+
+// BenchmarkBlockFFT is one inverse complex transform of the overlap-save
+// block lengths: blockFFT (table twiddles) against gonum's SequenceRadix4
+// (twiddles by repeated multiplication) and CmplxFFT.
+func BenchmarkBlockFFT(b *testing.B) {
+	for _, n := range []int{4096, 16384} {
+		x := make([]complex128, n)
+		for k := range x {
+			x[k] = complex(float64(k%7), float64(k%5))
+		}
+		f := newBlockFFT(n)
+		b.Run(fmt.Sprintf("blockFFT/%d", n), func(b *testing.B) {
+			b.ReportAllocs()
+			for b.Loop() {
+				f.transform(x, true)
+			}
+		})
+		b.Run(fmt.Sprintf("SequenceRadix4/%d", n), func(b *testing.B) {
+			for b.Loop() {
+				fourier.SequenceRadix4(x)
+			}
+		})
+		c := fourier.NewCmplxFFT(n)
+		b.Run(fmt.Sprintf("CmplxFFT/%d", n), func(b *testing.B) {
+			for b.Loop() {
+				c.Sequence(x, x)
+			}
+		})
+	}
+}

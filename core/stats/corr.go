@@ -1,7 +1,6 @@
 package stats
 
 import (
-	"cmp"
 	"math"
 	"slices"
 
@@ -24,33 +23,55 @@ func Ranks(dst, x []float64) []float64 {
 	if len(dst) != len(x) {
 		panic("stats: Ranks length mismatch")
 	}
-	idx := make([]int, 0, len(x))
+	// The non-NaN values sorted; a value's average rank is then the mean of
+	// the first and last positions it holds, (lo+1 + hi)/2 with lo values
+	// below it and hi at or below it. Sorting plain float64s and searching
+	// needs no comparison callback, which under wasm cost most of the time.
+	sorted := make([]float64, 0, len(x))
 	for i, v := range x {
 		if math.IsNaN(v) {
 			dst[i] = math.NaN()
 			continue
 		}
-		idx = append(idx, i)
+		sorted = append(sorted, v)
 	}
-	slices.SortFunc(idx, func(a, b int) int {
-		if c := cmp.Compare(x[a], x[b]); c != 0 {
-			return c
+	slices.Sort(sorted)
+	for i, v := range x {
+		if math.IsNaN(v) {
+			continue
 		}
-		return cmp.Compare(a, b)
-	})
-	for i := 0; i < len(idx); {
-		j := i + 1
-		for j < len(idx) && x[idx[j]] == x[idx[i]] {
-			j++
-		}
-		// Positions i..j-1 (0-based) hold ranks i+1..j; their mean is (i+1+j)/2.
-		r := float64(i+1+j) / 2
-		for k := i; k < j; k++ {
-			dst[idx[k]] = r
-		}
-		i = j
+		lo, hi := below(sorted, v), atOrBelow(sorted, v)
+		dst[i] = float64(lo+1+hi) / 2
 	}
 	return dst
+}
+
+// below returns how many values of the sorted s are less than v.
+func below(s []float64, v float64) int {
+	lo, hi := 0, len(s)
+	for lo < hi {
+		m := int(uint(lo+hi) >> 1)
+		if s[m] < v {
+			lo = m + 1
+		} else {
+			hi = m
+		}
+	}
+	return lo
+}
+
+// atOrBelow returns how many values of the sorted s are at most v.
+func atOrBelow(s []float64, v float64) int {
+	lo, hi := 0, len(s)
+	for lo < hi {
+		m := int(uint(lo+hi) >> 1)
+		if s[m] <= v {
+			lo = m + 1
+		} else {
+			hi = m
+		}
+	}
+	return lo
 }
 
 // constant reports whether every value of x equals the first one. It is

@@ -19,6 +19,15 @@ func NewRand(seed uint64) *rand.Rand {
 	return rand.New(rand.NewPCG(seed, pcgStream))
 }
 
+// NewRandFor returns the generator of substream k of seed: PCG seeded with
+// seed and pcgStream XOR (k+1)·0x9e3779b97f4a7c15 (the 64-bit golden-ratio
+// constant, which spreads neighbouring k over the second word). Work cut
+// into pieces that may run in any order on any worker draws piece k from
+// NewRandFor(seed, k), so its values do not depend on the other pieces.
+func NewRandFor(seed, k uint64) *rand.Rand {
+	return rand.New(rand.NewPCG(seed, pcgStream^((k+1)*0x9e3779b97f4a7c15)))
+}
+
 // uintN returns a uniform integer in [0, n) from rng.Uint64: a mask when n
 // is a power of two, else Lemire's multiply-and-reject method. It is the
 // algorithm of math/rand/v2's 64-bit IntN written out, because IntN takes a

@@ -207,7 +207,13 @@ func (w *Worker) HandleFiles(ctx context.Context, req wire.Request, list []forma
 			return
 		}
 		w.plan, w.seq, w.name = p, req.Seq, RecordingName(req.Source)
-		post(wire.Reply{Op: wire.OpUnits, Seq: req.Seq, Total: len(units)}, [][]byte{EncodeUnits(res)})
+		rep := wire.Reply{Op: wire.OpUnits, Seq: req.Seq, Total: len(units)}
+		for _, u := range p.LaterUnits() {
+			// every worker has the same plan: the page spreads these
+			// (OpDrawUnits with every worker's units) before OpFinish
+			rep.Late = append(rep.Late, wire.Unit{ID: u.ID, Kind: u.Kind, Channels: u.Channels, Cost: u.Cost})
+		}
+		post(rep, [][]byte{EncodeUnits(res)})
 	case wire.OpFinish:
 		if w.plan == nil || w.seq != req.Seq {
 			fail(errors.New("worker: finish without a matching run"))
@@ -242,10 +248,25 @@ func (w *Worker) HandleFiles(ctx context.Context, req wire.Request, list []forma
 			fail(errors.New("worker: figure units without a matching run"))
 			return
 		}
-		res, err := w.computeEach(ctx, len(req.Late), func(ctx context.Context, i int) (pipeline.UnitResult, error) {
+		one := func(ctx context.Context, i int) (pipeline.UnitResult, error) {
 			u := req.Late[i]
 			return w.plan.Figures.ComputeUnit(ctx, pipeline.Unit{ID: u.ID, Kind: u.Kind, Channels: u.Channels, Cost: u.Cost})
-		}, func(int) {})
+		}
+		if len(list) > 0 {
+			// later units (OpUnits' Late), from every worker's units
+			all, err := decodeAll(list)
+			if err != nil {
+				fail(err)
+				return
+			}
+			l, err := w.plan.Later(all)
+			if err != nil {
+				fail(err)
+				return
+			}
+			one = func(ctx context.Context, i int) (pipeline.UnitResult, error) { return l.Compute(ctx, req.Late[i].ID) }
+		}
+		res, err := w.computeEach(ctx, len(req.Late), one, func(int) {})
 		if err != nil {
 			fail(err)
 			return

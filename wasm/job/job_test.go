@@ -609,3 +609,92 @@ func TestLateFigureUnitsSpread(t *testing.T) {
 		t.Errorf("second draw: %q", e.Error)
 	}
 }
+
+// envelopes over the epochs of wideCSV with trial-shuffle surrogates, two
+// of them orthogonalised (pairwise: 2 blocks of surrogates per row)
+const laterRecipe = `{"spectral": {"low": 2, "high": 30, "steps": 10},
+ "analyses": [
+  {"id": "orth", "type": "envelope", "channels": ["C4", "Pz", "A", "B"], "freq": [8, 12], "leakageCorrection": "pairwise", "surrogates": 60, "randomSeed": 5},
+  {"id": "plain", "type": "envelope", "channels": ["C4", "C"], "freq": [8, 12], "surrogates": 30, "randomSeed": 6}]}`
+
+// The later units (envelope surrogates), listed in every OpUnits reply, go
+// out to the workers with every worker's units (OpDrawUnits) and come back
+// to worker 0 with OpFinish: results.csv equals pipeline.Run's byte for
+// byte, with one worker or three.
+func TestLaterUnitsSpread(t *testing.T) {
+	data := wideCSV()
+	src := wire.Source{Name: "wide.csv"}
+	r, err := recipe.Parse([]byte(laterRecipe))
+	if err != nil {
+		t.Fatal(err)
+	}
+	ds, err := Open(r, src, Files{"wide.csv": format.Bytes("wide.csv", data)})
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := pipeline.Run(context.Background(), r, ds, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	AddRecording(res, "wide.csv")
+	var want bytes.Buffer
+	if err := report.WriteCSV(&want, res); err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(want.String(), "trials-t") {
+		t.Fatalf("no envelope rows over epochs:\n%s", want.String())
+	}
+	for _, n := range []int{1, 3} {
+		workers := make([]*Worker, n)
+		var unitBufs [][]byte
+		var late []wire.Unit
+		for k := range workers {
+			workers[k] = &Worker{}
+			var rp replies
+			workers[k].Handle(context.Background(), wire.Request{Op: wire.OpRun, Seq: 8, Source: src, Recipe: []byte(laterRecipe), Worker: k, Workers: n},
+				[]string{"wide.csv"}, [][]byte{append([]byte(nil), data...)}, rp.post)
+			rep, bufs := rp.last(t, wire.OpUnits)
+			unitBufs = append(unitBufs, bufs[0])
+			late = rep.Late
+		}
+		// orth: 6 rows × 2 blocks, plain: 1 row × 1
+		if len(late) != 13 {
+			t.Fatalf("%d later units, want 13", len(late))
+		}
+		names := make([]string, n)
+		for i := range names {
+			names[i] = fmt.Sprintf("units-%d", i)
+		}
+		var drawn [][]byte
+		for k, w := range workers {
+			var mine []wire.Unit
+			for i, u := range late {
+				if i%n == k {
+					mine = append(mine, u)
+				}
+			}
+			copies := make([][]byte, n)
+			for i, b := range unitBufs {
+				copies[i] = append([]byte(nil), b...)
+			}
+			var rp replies
+			w.Handle(context.Background(), wire.Request{Op: wire.OpDrawUnits, Seq: 8, Late: mine}, names, copies, rp.post)
+			rep, bufs := rp.last(t, wire.OpDrawn)
+			if rep.Done != len(mine) {
+				t.Errorf("worker %d computed %d later units, want %d", k, rep.Done, len(mine))
+			}
+			drawn = append(drawn, bufs[0])
+		}
+		var rp replies
+		all := append(append([][]byte(nil), unitBufs...), drawn...)
+		allNames := append([]string(nil), names...)
+		for i := range drawn {
+			allNames = append(allNames, fmt.Sprintf("later-%d", i))
+		}
+		workers[0].Handle(context.Background(), wire.Request{Op: wire.OpFinish, Seq: 8}, allNames, all, rp.post)
+		rep, _ := rp.last(t, wire.OpResults)
+		if rep.CSV != want.String() {
+			t.Fatalf("%d workers: results.csv differs from pipeline.Run:\n%s\nwant\n%s", n, rep.CSV, want.String())
+		}
+	}
+}

@@ -42,22 +42,31 @@ func ar1(dst []float64, phi float64, rng *rand.Rand) {
 }
 
 // Epochs returns the standard epochs with the given number of trials
-// (StdTrials for the standard workload), in µV.
+// (StdTrials for the standard workload), in µV: EpochsN with StdChannels.
+func Epochs(trials int, seed uint64) *data.Epochs { return EpochsN(StdChannels, trials, seed) }
+
+// EpochsN returns the standard epochs with nch channels (at least 4) and the
+// given number of trials, in µV. With nch = StdChannels they are the standard
+// workload's epochs, bit for bit.
 //
 // Every channel carries unit-variance AR(1) background (φ = 0.9 at 500 Hz),
 // 30% of which is shared by all channels (volume conduction), plus 0.5 µV
 // white noise. Planted cross-trial structure, with a trial latent
-// u_t = exp(0.6·N(0,1)):
-//   - channels 1–8 have a 20 Hz burst centred at −0.25 s (Gaussian envelope,
+// u_t = exp(0.6·N(0,1)), in four blocks of channels (channel c, counted from
+// 0, is in block ⌊4c/nch⌋; the channels named are those of 32 channels):
+//   - block 0 (channels 1–8) has a 20 Hz burst centred at −0.25 s (Gaussian envelope,
 //     σ = 0.08 s) of amplitude 3·√u_t µV and random phase;
-//   - channels 9–16 have a 6 Hz burst centred at 0.45 s (σ = 0.1 s) of
+//   - block 1 (channels 9–16) has a 6 Hz burst centred at 0.45 s (σ = 0.1 s) of
 //     amplitude 3·√v_t µV, with log v_t = 0.7·log u_t + 0.71·0.6·N(0,1),
-//     so their target-window power follows the seed power of channels 1–8;
-//   - channels 17–24 have a 6 Hz burst of independent amplitude;
-//   - channels 25–32 are background only.
-func Epochs(trials int, seed uint64) *data.Epochs {
+//     so their target-window power follows the seed power of block 0;
+//   - block 2 (channels 17–24) has a 6 Hz burst of independent amplitude;
+//   - block 3 (channels 25–32) is background only.
+func EpochsN(nch, trials int, seed uint64) *data.Epochs {
+	if nch < 4 {
+		panic("workload: EpochsN needs at least 4 channels")
+	}
 	rng := rand.New(rand.NewPCG(seed, stream))
-	e := data.NewEpochs(StdRate, StdStart, Names(StdChannels), trials, StdSamples)
+	e := data.NewEpochs(StdRate, StdStart, Names(nch), trials, StdSamples)
 	e.Name = "workload"
 	bg := make([]float64, StdSamples)
 	common := make([]float64, StdSamples)
@@ -66,10 +75,10 @@ func Epochs(trials int, seed uint64) *data.Epochs {
 		lv := 0.7*lu + 0.71*0.6*rng.NormFloat64()
 		li := 0.6 * rng.NormFloat64()
 		ar1(common, 0.9, rng)
-		for c := range StdChannels {
+		for c := range nch {
 			ar1(bg, 0.9, rng)
 			var amp, f, mid, sd float64
-			switch c / 8 {
+			switch 4 * c / nch {
 			case 0:
 				amp, f, mid, sd = 3*math.Exp(lu/2), 20, -0.25, 0.08
 			case 1:

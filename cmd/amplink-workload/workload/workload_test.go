@@ -2,6 +2,9 @@ package workload
 
 import (
 	"context"
+	"crypto/sha256"
+	"encoding/binary"
+	"fmt"
 	"math"
 	"slices"
 	"strconv"
@@ -11,6 +14,7 @@ import (
 	"amplink/core/pipeline"
 	"amplink/core/recipe"
 	"amplink/core/report"
+	"amplink/core/stats"
 )
 
 func TestDeterministic(t *testing.T) {
@@ -145,5 +149,76 @@ func TestPlantedEnvelopeCoupling(t *testing.T) {
 				t.Errorf("r%v = %.3f, r%v = %.3f", c.near, r[c.near], c.far, r[c.far])
 			}
 		})
+	}
+}
+
+// The standard epochs stay what they were before EpochsN took a channel
+// count: the SHA-256 of Epochs(5, 7)'s float32 samples (little-endian) as
+// the generator of commit 3924bcd wrote them. A 306-channel set has the
+// block layout of the doc comment.
+func TestEpochsNStandard(t *testing.T) {
+	h := sha256.New()
+	if err := binary.Write(h, binary.LittleEndian, Epochs(5, 7).Data); err != nil {
+		t.Fatal(err)
+	}
+	if got, want := fmt.Sprintf("%x", h.Sum(nil)), "fb0b53fd43602089b27ddea3a5988c4a4330e5ff60bfe065006a4e35482dd75f"; got != want {
+		t.Errorf("standard epochs changed: sha256 %s, want %s", got, want)
+	}
+	e := EpochsN(306, 3, 1)
+	if len(e.Channels) != 306 || e.Channels[305].Name != "E306" || len(e.Data) != 3*306*StdSamples {
+		t.Fatalf("306 channels: %d channels, last %q, %d samples", len(e.Channels), e.Channels[len(e.Channels)-1].Name, len(e.Data))
+	}
+	if !slices.Equal(EpochsN(StdChannels, 4, 1).Data, Epochs(4, 1).Data) {
+		t.Error("EpochsN(32, …) differs from Epochs(…)")
+	}
+}
+
+// Tables keeps every cell of the template but the recording, r and p; r
+// moves on the z scale and p is the t-test p of the new r; the same seed
+// gives the same tables and another seed others.
+func TestTables(t *testing.T) {
+	nan := math.NaN()
+	tmpl := &report.Results{Rows: []report.Row{
+		{Analysis: "a", Type: "trial-window", Seed: "E01", Target: "E02", Method: "spearman", N: 50, R: 0.4, P: 0.004,
+			Extra: []report.Field{{Name: "note", Value: ""}, {Name: "recording", Value: "x.f32"}}},
+		{Analysis: "a", Type: "trial-window", Seed: "E01", Target: "E03", Method: "spearman", N: 50, R: nan, P: nan,
+			Extra: []report.Field{{Name: "note", Value: "undefined"}, {Name: "recording", Value: "x.f32"}}},
+	}}
+	collect := func(seed uint64) []report.Results {
+		var out []report.Results
+		if err := Tables(tmpl, 3, seed, func(i int, res *report.Results) error {
+			out = append(out, *res)
+			return nil
+		}); err != nil {
+			t.Fatal(err)
+		}
+		return out
+	}
+	a, b, c := collect(1), collect(1), collect(2)
+	for i, res := range a {
+		for j, row := range res.Rows {
+			if got := row.Field("recording"); got != TableName(i) {
+				t.Errorf("table %d row %d: recording %q, want %q", i, j, got, TableName(i))
+			}
+			if row.Field("note") != tmpl.Rows[j].Field("note") || row.Seed != tmpl.Rows[j].Seed || row.N != tmpl.Rows[j].N {
+				t.Errorf("table %d row %d: other cells changed: %+v", i, j, row)
+			}
+			if row.R != b[i].Rows[j].R && !(math.IsNaN(row.R) && math.IsNaN(b[i].Rows[j].R)) {
+				t.Errorf("table %d row %d: same seed, r %v and %v", i, j, row.R, b[i].Rows[j].R)
+			}
+		}
+		r := res.Rows[0].R
+		if r == 0.4 || math.Abs(r) >= 1 || r == c[i].Rows[0].R {
+			t.Errorf("table %d: r = %v (other seed %v), want a new value in (-1, 1)", i, r, c[i].Rows[0].R)
+		}
+		if want := stats.PValueT(r, 48); res.Rows[0].P != want {
+			t.Errorf("table %d: p = %v, want %v", i, res.Rows[0].P, want)
+		}
+		if !math.IsNaN(res.Rows[1].R) || !math.IsNaN(res.Rows[1].P) {
+			t.Errorf("table %d: an undefined r became %v", i, res.Rows[1].R)
+		}
+	}
+	if tmpl.Rows[0].Field("recording") != "x.f32" {
+		t.Error("Tables changed the template")
 	}
 }

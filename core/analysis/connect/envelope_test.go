@@ -444,6 +444,21 @@ func TestEnvelopeScipy(t *testing.T) {
 		{"orth y→x", yx.R(), ref.OrthYX},            // corr(|Y|, |X⊥Y|)
 		{"orth", 0.5 * (xy.R() + yx.R()), ref.Orth}, // Hipp et al. 2012 average
 	}
+	// The same two directions from the blocked kernel, sample by sample
+	// (bin 1): corr(|X|, |Y⊥X|) and corr(|Y|, |X⊥Y|) as numpy has them.
+	orth := OrthEnvelopes(nil, [][]complex128{zx, zy}, 1, nil, Amplitude, nil)
+	var bxy, byx Moments
+	for j := range zx {
+		bxy.Add(cmplx.Abs(zx[j]), orth[OrthIndex(2, 0, 1)][j])
+		byx.Add(cmplx.Abs(zy[j]), orth[OrthIndex(2, 1, 0)][j])
+	}
+	cases = append(cases, []struct {
+		name      string
+		got, want float64
+	}{
+		{"blocked orth x→y", bxy.R(), ref.OrthXY},
+		{"blocked orth y→x", byx.R(), ref.OrthYX},
+	}...)
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			if math.Abs(c.got-c.want) > 1e-9 {

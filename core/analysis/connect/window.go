@@ -20,7 +20,16 @@ type Span struct {
 // the longest wavelet's half-width on each side) is convolved, with an FFT
 // length of small prime factors; the forward transform of a segment is shared
 // by all frequencies of the span. dst is allocated when nil.
-func WindowPower(ctx context.Context, dst []float64, bank *spectral.Bank, e *data.Epochs, ch int, spans []Span) ([]float64, error) {
+//
+// With forms (see Forms), a span whose quadratic form pays is computed
+// through it (see Form.Power) within the forms' tolerance, and by FFT for
+// any trial whose error bound the form's ranks cannot meet; when the first
+// formPilot trials of a span cost more through the form (the ranks they
+// needed, and the FFT for those that fell back) than the FFT route would
+// have, the rest of the channel's trials take the FFT directly. Either way
+// the values depend only on the channel's data and the recipe, never on
+// other units or goroutines. A nil forms gives the FFT route throughout.
+func WindowPower(ctx context.Context, dst []float64, bank *spectral.Bank, forms *Forms, e *data.Epochs, ch int, spans []Span) ([]float64, error) {
 	n := len(spans) * e.NTrials
 	if dst == nil {
 		dst = make([]float64, n)
@@ -29,8 +38,14 @@ func WindowPower(ctx context.Context, dst []float64, bank *spectral.Bank, e *dat
 		panic("connect: dst length mismatch")
 	}
 	convs := map[int]*spectral.Convolver{}
-	type crop struct{ lo, hi, nfft int }
+	type crop struct {
+		lo, hi, nfft int
+		form         *Form
+		fftCost      float64 // fftRouteCost of the span
+		formCost     float64 // the form's cost so far, in the same units
+	}
 	crops := make([]crop, len(spans))
+	var buf []float64
 	for s, sp := range spans {
 		h := bank.MaxHalf(sp.Freqs)
 		lo, hi := spectral.Crop(e.NSamples, sp.From, sp.To, h)
@@ -42,11 +57,21 @@ func WindowPower(ctx context.Context, dst []float64, bank *spectral.Bank, e *dat
 		if p2 := spectral.PowerOfTwo(nfft); p2 <= spectral.MaxRadixLen && p2*2 <= nfft*3 {
 			nfft = p2
 		}
-		crops[s] = crop{lo, hi, nfft}
+		crops[s] = crop{lo: lo, hi: hi, nfft: nfft, fftCost: fftRouteCost(nfft, len(sp.Freqs))}
 		if convs[nfft] == nil {
 			c := bank.NewConvolver(nfft)
 			c.Tight = true
 			convs[nfft] = c
+		}
+	}
+	// The forms are asked for in an order that starts at this channel's
+	// span, so that concurrent units build different windows' forms.
+	for i := range spans {
+		s := (ch + i) % len(spans)
+		c := &crops[s]
+		c.form = forms.get(bank, e.NSamples, spans[s], c.nfft)
+		if c.form != nil && len(buf) < c.form.Len() {
+			buf = make([]float64, c.form.Len())
 		}
 	}
 	for t := 0; t < e.NTrials; t++ {
@@ -57,7 +82,21 @@ func WindowPower(ctx context.Context, dst []float64, bank *spectral.Bank, e *dat
 		}
 		x := e.Trial(t, ch)
 		for s, sp := range spans {
-			c := crops[s]
+			c := &crops[s]
+			if c.form != nil {
+				p, r, ok := c.form.Power(x, buf)
+				c.formCost += float64(r * c.form.Len())
+				if !ok {
+					c.formCost += c.fftCost
+				}
+				if t == formPilot-1 && c.formCost > formPilot*c.fftCost {
+					c.form = nil
+				}
+				if ok {
+					dst[s*e.NTrials+t] = p
+					continue
+				}
+			}
 			conv := convs[c.nfft]
 			conv.Load(x[c.lo:c.hi])
 			sum := 0.0
@@ -69,3 +108,7 @@ func WindowPower(ctx context.Context, dst []float64, bank *spectral.Bank, e *dat
 	}
 	return dst, nil
 }
+
+// formPilot is the number of trials after which a span whose form mostly
+// falls back to the FFT gives the form up for the rest of the channel.
+const formPilot = 16

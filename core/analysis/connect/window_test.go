@@ -78,7 +78,7 @@ func TestWindowPowerDirect(t *testing.T) {
 		{From: 120, To: 160, Freqs: []int{0, 1, 2, 3, 4, 5, 6}},
 	}
 	for _, ch := range []int{0, 2} {
-		got, err := WindowPower(context.Background(), nil, bank, e, ch, spans)
+		got, err := WindowPower(context.Background(), nil, bank, nil, e, ch, spans)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -110,7 +110,7 @@ func TestWindowPowerDst(t *testing.T) {
 	}
 	e := wpEpochs(3, 1, 120, 100)
 	spans := []Span{{From: 10, To: 50, Freqs: []int{0}}, {From: 60, To: 119, Freqs: []int{0}}}
-	want, err := WindowPower(context.Background(), nil, bank, e, 0, spans)
+	want, err := WindowPower(context.Background(), nil, bank, nil, e, 0, spans)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -118,7 +118,7 @@ func TestWindowPowerDst(t *testing.T) {
 	for i := range dst {
 		dst[i] = math.NaN()
 	}
-	got, err := WindowPower(context.Background(), dst, bank, e, 0, spans)
+	got, err := WindowPower(context.Background(), dst, bank, nil, e, 0, spans)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -137,7 +137,7 @@ func TestWindowPowerDst(t *testing.T) {
 				t.Errorf("panic %v, want a connect: programmer-error panic", p)
 			}
 		}()
-		_, _ = WindowPower(context.Background(), make([]float64, 5), bank, e, 0, spans)
+		_, _ = WindowPower(context.Background(), make([]float64, 5), bank, nil, e, 0, spans)
 	})
 }
 
@@ -167,7 +167,7 @@ func TestWindowPowerCancel(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			got, err := WindowPower(c.ctx(), nil, bank, e, 0, spans)
+			got, err := WindowPower(c.ctx(), nil, bank, nil, e, 0, spans)
 			if !errors.Is(err, c.want) {
 				t.Errorf("err = %v (result %d values), want %v", err, len(got), c.want)
 			}
@@ -201,7 +201,7 @@ func TestWindowPowerCosine(t *testing.T) {
 				x[k] = float32(c.amp * math.Cos(2*math.Pi*f*float64(k)/rate+0.4))
 			}
 			h := bank.Half(c.fi)
-			got, err := WindowPower(context.Background(), nil, bank, e, 0, []Span{{From: h, To: ns - h, Freqs: []int{c.fi}}})
+			got, err := WindowPower(context.Background(), nil, bank, nil, e, 0, []Span{{From: h, To: ns - h, Freqs: []int{c.fi}}})
 			if err != nil {
 				t.Fatal(err)
 			}
