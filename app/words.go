@@ -43,8 +43,8 @@ var topWords = map[string]string{
 	"spectral.high": "Highest frequency", "spectral.steps": "Number of frequencies",
 	"spectral.spacing": "Frequency spacing", "spectral.cycles": "Cycles",
 	"spectral.cycles[0]": "Cycles at lowest", "spectral.cycles[1]": "Cycles at highest",
-	"spectral.tolerance": "Window-power tolerance",
-	"spectral.method":    "Spectral method", "figures": "Figures", "figures.powerScale": "Power colour scale",
+	"spectral.tolerance": "Window-power tolerance", "spectral.method": "Spectral method",
+	"figures": "Figures", "figures.powerScale": "Power colour scale",
 	"analyses": "Analyses",
 }
 

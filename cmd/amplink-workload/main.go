@@ -82,7 +82,9 @@ func run(stdout, stderr io.Writer, args []string) error {
 		return writeTables(stdout, *out, *template, *tables, *seed)
 	}
 	stdCh, longCh := workload.StdChannels, 64
-	if *channels != 0 {
+	given := false
+	fs.Visit(func(f *flag.Flag) { given = given || f.Name == "channels" })
+	if given {
 		if *long {
 			longCh = *channels
 		} else {
