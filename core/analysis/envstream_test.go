@@ -21,24 +21,11 @@ import (
 // 200 Hz (150 000 samples), so a continuous envelope analysis has several
 // chunks of chunkLen samples.
 func longEnvelopes() *data.Recording {
-	const rate, n = 200.0, 150000
-	rng := rand.New(rand.NewPCG(7, 1))
-	env := synth.SlowNoise(rng, n, 200)
-	cs := synth.CarrierWalk(rng, n, rate, 10)
-	cg := synth.CarrierWalk(rng, n, rate, 10)
-	ch := synth.CarrierWalk(rng, n, rate, 40)
+	const rate = 200.0
 	rec := &data.Recording{Name: "long.edf", Rate: rate}
-	for _, nm := range []string{"S", "L", "G", "H", "N"} {
-		rec.Channels = append(rec.Channels, data.Channel{Name: nm, Unit: "uV"})
-		rec.Samples = append(rec.Samples, make([]float32, n))
-	}
-	for i := range n {
-		s := env[i] * cs[i]
-		rec.Samples[0][i] = float32(s + 0.1*rng.NormFloat64())
-		rec.Samples[1][i] = float32(0.8*s + 0.3*rng.NormFloat64())
-		rec.Samples[2][i] = float32(env[i]*cg[i] + 0.1*rng.NormFloat64())
-		rec.Samples[3][i] = float32(env[i]*ch[i] + 0.1*rng.NormFloat64())
-		rec.Samples[4][i] = float32(rng.NormFloat64())
+	for i, x := range synth.EnvelopeSignals(rand.New(rand.NewPCG(7, 1)), 150000, rate) {
+		rec.Channels = append(rec.Channels, data.Channel{Name: synth.EnvelopeNames[i], Unit: "uV"})
+		rec.Samples = append(rec.Samples, x)
 	}
 	return rec
 }

@@ -169,27 +169,40 @@ func CarrierWalk(rng *rand.Rand, n int, rate, f float64) []float64 {
 //	N  noise only
 //	F  flat (zero variance)
 func Envelopes() *data.Recording {
-	const rate, n = 200.0, 12000
-	rng := rand.New(rand.NewPCG(42, 1))
+	const rate = 200.0
+	rec := &data.Recording{Name: "env", Rate: rate}
+	for i, x := range EnvelopeSignals(rand.New(rand.NewPCG(42, 1)), 12000, rate) {
+		rec.Channels = append(rec.Channels, data.Channel{Name: EnvelopeNames[i]})
+		rec.Samples = append(rec.Samples, x)
+	}
+	rec.Channels = append(rec.Channels, data.Channel{Name: "F"})
+	rec.Samples = append(rec.Samples, make([]float32, 12000))
+	return rec
+}
+
+// EnvelopeNames are the channels EnvelopeSignals returns, in order.
+var EnvelopeNames = []string{"S", "L", "G", "H", "N"}
+
+// EnvelopeSignals returns n samples at rate of the channels S, L, G, H and N
+// described at Envelopes, drawn from rng.
+func EnvelopeSignals(rng *rand.Rand, n int, rate float64) [][]float32 {
 	env := SlowNoise(rng, n, 200)
 	cs := CarrierWalk(rng, n, rate, 10)
 	cg := CarrierWalk(rng, n, rate, 10)
 	ch := CarrierWalk(rng, n, rate, 40)
-	names := []string{"S", "L", "G", "H", "N", "F"}
-	rec := &data.Recording{Name: "env", Rate: rate}
-	for _, nm := range names {
-		rec.Channels = append(rec.Channels, data.Channel{Name: nm})
-		rec.Samples = append(rec.Samples, make([]float32, n))
+	out := make([][]float32, len(EnvelopeNames))
+	for c := range out {
+		out[c] = make([]float32, n)
 	}
 	for i := range n {
 		s := env[i] * cs[i]
-		rec.Samples[0][i] = float32(s + 0.1*rng.NormFloat64())
-		rec.Samples[1][i] = float32(0.8*s + 0.3*rng.NormFloat64())
-		rec.Samples[2][i] = float32(env[i]*cg[i] + 0.1*rng.NormFloat64())
-		rec.Samples[3][i] = float32(env[i]*ch[i] + 0.1*rng.NormFloat64())
-		rec.Samples[4][i] = float32(rng.NormFloat64())
+		out[0][i] = float32(s + 0.1*rng.NormFloat64())
+		out[1][i] = float32(0.8*s + 0.3*rng.NormFloat64())
+		out[2][i] = float32(env[i]*cg[i] + 0.1*rng.NormFloat64())
+		out[3][i] = float32(env[i]*ch[i] + 0.1*rng.NormFloat64())
+		out[4][i] = float32(rng.NormFloat64())
 	}
-	return rec
+	return out
 }
 
 // Tables writes the results table and every map of res as one text, for
